@@ -125,7 +125,7 @@ describe("transition path in closed form", () => {
     expectNear(rising.growth[1], 0.02 * Math.exp(0.5), 1e-15); // b = 0: g = g0 e^{a t}, derived by hand, tol 1e-15
   });
 
-  it("does not mutate or depend on call order, and rejects bad grids", () => {
+  it("rejects bad inputs with specific messages", () => {
     expect(() => transitionPathClosedForm({ ...example, g0: 0, years: 10 })).toThrow(/g0 must be positive, got 0/);
     expect(() => transitionPathClosedForm({ ...example, g0: 0.02, years: 10, step: 3 })).toThrow(/years = 10 is not a whole number of steps of 3/);
     expect(() => transitionPathClosedForm({ ...example, gamma: Number.NaN, g0: 0.02, years: 10 })).toThrow(/gamma must be a finite number/);

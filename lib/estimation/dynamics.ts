@@ -415,7 +415,7 @@ export function transitionPathClosedForm(input: ClosedFormPathInput): GrowthPath
  * null when theta <= 1 (no finite-time blow-up), and when a < 0 and g0 lies at or below the unstable
  * threshold a / (1 - theta) (then growth decays towards zero instead).
  * Throws RangeError for non-finite parameters or g0 <= 0.
- * Example: blowUpTime({ gamma: 0.5, theta: 1.2, n: 0, g0: 0.02 }) -> 250
+ * Example: blowUpTime({ gamma: 0.5, theta: 1.25, n: 0, g0: 0.02 }) -> 200   (1 / (0.25 * 0.02))
  * Reference: DOMAIN.md section 2 [computed], from the Bernoulli solution of dg/dt = a g + (theta - 1) g^2.
  */
 export function blowUpTime({ gamma, theta, n, g0 }: GrowthParameters & { g0: number }): number | null {
@@ -660,7 +660,7 @@ export interface DiscreteGrowthPathInput {
  * Throws RangeError for non-finite parameters, g0 <= 0, a non-integer or non-positive periods, an
  * n array shorter than periods, or any n <= -1.
  * Example: discreteGrowthPath({ gamma: 1, theta: 0, n: 0.02, g0: 0.01, periods: 1 }).growth
- *   -> [0.01, 0.010099009900990099]
+ *   -> [0.01, 0.0100990099009901]
  * Reference: DOMAIN.md section 2 [computed], derived from the discrete law of motion.
  */
 export function discreteGrowthPath(input: DiscreteGrowthPathInput): { periods: number[]; growth: (number | null)[]; regime: Regime; warnings: string[] } {
