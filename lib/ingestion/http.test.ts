@@ -313,6 +313,7 @@ describe("fetchWithPolicy: cancellation and messages", () => {
   it("throws RangeError at once on a misuse", async () => {
     await expect(fetchWithPolicy(wbUrl, { retries: -1 } as FetchOptions)).rejects.toThrow(RangeError);
     await expect(fetchWithPolicy(wbUrl, { timeoutMs: 0 })).rejects.toThrow("timeoutMs must be a number >= 1, got 0");
+    await expect(fetchWithPolicy("/relative/path?key=abc")).rejects.toThrow(TypeError);
     expect(agency.requests).toHaveLength(0);
   });
 });

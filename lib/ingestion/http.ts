@@ -261,13 +261,15 @@ type AttemptOutcome = { ok: true; result: Omit<FetchResult, "attempts"> } | { ok
 /**
  * GET `url` under a policy (see FetchOptions for every setting and default).
  * Throws FetchError (codes TIMEOUT, HTTP_STATUS, TOO_LARGE, NETWORK, TRUNCATED, ABORTED) when no
- * attempt succeeds; throws RangeError at once on a misuse (negative retries, zero timeout).
+ * attempt succeeds; throws at once on a misuse: RangeError (negative retries, zero timeout),
+ * TypeError (not an absolute URL).
  * Example: `await fetchWithPolicy(url, { etag: '"r1"' })` gives `{ status: 304, notModified: true, ... }`
  * when the server still holds the representation tagged "r1".
  */
 export async function fetchWithPolicy(url: string, options: FetchOptions = {}): Promise<FetchResult> {
   const policy = resolvePolicy(options);
   const safeUrl = redactUrl(url, options.redactParams);
+  if (!URL.canParse(url)) throw new TypeError(`Not an absolute URL: ${safeUrl}`);
   const headers = requestHeaders(options);
   const signal = options.signal;
 
