@@ -49,6 +49,8 @@ export const DEFAULT_SCHEDULE = "0 6 * * *"; // daily at 06:00 in the source's t
 
 const QUERY_FIELD_PLACEHOLDERS = ["key", "indicator", "dataset"] as const;
 const PLACEHOLDER = /\{([A-Za-z_][A-Za-z0-9_]*)\}/g;
+/** A query-string value that is one placeholder and nothing else: optional, dropped when empty. */
+const WHOLE_PLACEHOLDER = /^\{([A-Za-z_][A-Za-z0-9_]*)\}$/;
 
 const slug = z
   .string()
@@ -303,7 +305,7 @@ function unresolvedPathPlaceholders(def: DefinitionLike, q: QueryLike): string[]
   check(path);
   for (const part of query) {
     const [, value = ""] = part.split(/=(.*)/s);
-    if (/^\{[A-Za-z_][A-Za-z0-9_]*\}$/.test(value)) continue; // optional: dropped when empty
+    if (WHOLE_PLACEHOLDER.test(value)) continue; // optional: dropped when empty
     check(part);
   }
   missing.delete("base"); // a missing baseUrl is reported on its own field
@@ -361,7 +363,7 @@ export function buildRequestUrls(def: SourceDefinition, options: { page?: number
       const eq = part.indexOf("=");
       const name = eq < 0 ? part : part.slice(0, eq);
       const value = eq < 0 ? null : part.slice(eq + 1);
-      const only = value?.match(/^\{([A-Za-z_][A-Za-z0-9_]*)\}$/);
+      const only = value?.match(WHOLE_PLACEHOLDER);
       if (only) {
         const v = resolve(only[1] as string);
         if (v === undefined || v === "") continue;
