@@ -459,8 +459,39 @@ function charsIn(b: Buffer, from: number, to: number): number {
 // ---------------------------------------------------------------------------------------------
 // Numbers
 
-const DECIMAL_RE = /^[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?$/;
 const INFINITY_RE = /^[+-]?(?:inf|infinity)$/i;
+
+/** True when `t` is a plain decimal number: [+-]digits[.digits][e[+-]digits], at least one digit before the exponent. */
+export function isDecimalText(t: string): boolean {
+  const n = t.length;
+  let i = 0;
+  let c = n ? t.charCodeAt(0) : 0;
+  if (c === 43 || c === 45) i++;
+  let digits = 0;
+  while (i < n && (c = t.charCodeAt(i)) >= 48 && c <= 57) {
+    i++;
+    digits++;
+  }
+  if (i < n && t.charCodeAt(i) === 46) {
+    i++;
+    while (i < n && (c = t.charCodeAt(i)) >= 48 && c <= 57) {
+      i++;
+      digits++;
+    }
+  }
+  if (digits === 0) return false;
+  if (i < n && ((c = t.charCodeAt(i)) === 101 || c === 69)) {
+    i++;
+    if (i < n && ((c = t.charCodeAt(i)) === 43 || c === 45)) i++;
+    let e = 0;
+    while (i < n && (c = t.charCodeAt(i)) >= 48 && c <= 57) {
+      i++;
+      e++;
+    }
+    if (e === 0) return false;
+  }
+  return i === n;
+}
 
 /** Outcome of reading a value cell: a number, an explicit missing value, or a problem code. */
 export type CellValue = number | null | "NOT_NUMERIC" | "NOT_FINITE";
@@ -484,9 +515,9 @@ export function readDecimal(text: string, missing: ReadonlySet<string>, decimalC
       t = t.slice(0, c) + "." + t.slice(c + 1);
     }
   }
-  if (!DECIMAL_RE.test(t)) return INFINITY_RE.test(t) ? "NOT_FINITE" : "NOT_NUMERIC";
-  const v = Number(t);
-  return Number.isFinite(v) && Math.abs(v) <= 1e300 ? v : "NOT_FINITE";
+  if (!isDecimalText(t)) return INFINITY_RE.test(t) ? "NOT_FINITE" : "NOT_NUMERIC";
+  const v = +t;
+  return v <= 1e300 && v >= -1e300 ? v : "NOT_FINITE";
 }
 
 /** Largest magnitude accepted as a value (beyond it: VALUE_NOT_FINITE). */
@@ -572,14 +603,6 @@ function pathOf(stack: StackElement[]): (string | number)[] {
   return out;
 }
 
-interface Frame {
-  isObject: boolean;
-  keys: Set<string> | null;
-  index: number;
-  lastKey: string | undefined;
-  name: string | number | undefined;
-}
-
 /**
  * Read a JSON payload as a stream and emit the values at `paths`. Reports, with line and column:
  * EMPTY_PAYLOAD, ENCODING_INVALID, ENCODING_STRAY_BOM (outside strings), JSON_SYNTAX,
@@ -591,7 +614,15 @@ export async function readJson(input: PayloadInput, state: ParseState, options: 
   const scanner = new ByteScanner(state, "allow");
   const tokenizer = new Tokenizer();
   const parser = new TokenParser({ paths: options.paths, keepStack: false });
-  const frames: Frame[] = [];
+  // A light stack of open containers, kept in parallel arrays (no allocation per array token):
+  // whether each is an object, the member names seen (for duplicate detection), the index of the
+  // current element (arrays) or the last member name (objects), and the container's own name.
+  const isObj: boolean[] = [];
+  const keySets: (Set<string> | null)[] = [];
+  const indexes: number[] = [];
+  const lastKeys: (string | undefined)[] = [];
+  const names: (string | number | undefined)[] = [];
+  let depth = 0;
   const skipKeyCheck = options.skipKeyCheck;
   let expectKey = false;
   let tokenOffset = 0;
@@ -606,44 +637,49 @@ export async function readJson(input: PayloadInput, state: ParseState, options: 
     switch (token) {
       case TokenType.LEFT_BRACE:
       case TokenType.LEFT_BRACKET: {
-        const parent = frames.length ? frames[frames.length - 1]! : undefined;
-        const name = parent ? (parent.isObject ? parent.lastKey : parent.index) : undefined;
-        const isObject = token === TokenType.LEFT_BRACE;
+        const name = depth === 0 ? undefined : isObj[depth - 1] ? lastKeys[depth - 1] : indexes[depth - 1];
+        const object = token === TokenType.LEFT_BRACE;
         let keys: Set<string> | null = null;
-        if (isObject) {
+        if (object) {
           keys = new Set();
           if (skipKeyCheck) {
-            const names: (string | number | undefined)[] = frames.map((f) => f.name).slice(1);
-            if (frames.length) names.push(name);
-            if (skipKeyCheck(names)) keys = null;
+            const path = names.slice(1, depth);
+            if (depth > 0) path.push(name);
+            if (skipKeyCheck(path)) keys = null;
           }
         }
-        frames.push({ isObject, keys, index: 0, lastKey: undefined, name });
-        expectKey = isObject;
+        isObj[depth] = object;
+        keySets[depth] = keys;
+        indexes[depth] = 0;
+        lastKeys[depth] = undefined;
+        names[depth] = name;
+        depth++;
+        expectKey = object;
         break;
       }
       case TokenType.RIGHT_BRACE:
       case TokenType.RIGHT_BRACKET:
-        frames.pop();
+        if (depth > 0) {
+          depth--;
+          keySets[depth] = null;
+        }
         expectKey = false;
         break;
-      case TokenType.COMMA: {
-        const top = frames[frames.length - 1];
-        if (top) {
-          if (top.isObject) expectKey = true;
-          else top.index++;
+      case TokenType.COMMA:
+        if (depth > 0) {
+          if (isObj[depth - 1]) expectKey = true;
+          else indexes[depth - 1]!++;
         }
         break;
-      }
       case TokenType.STRING:
         if (expectKey) {
           expectKey = false;
-          const top = frames[frames.length - 1]!;
           const key = info.value as string;
-          top.lastKey = key;
-          if (top.keys) {
-            if (top.keys.has(key)) duplicate = { key, offset: info.offset };
-            else top.keys.add(key);
+          lastKeys[depth - 1] = key;
+          const set = keySets[depth - 1];
+          if (set) {
+            if (set.has(key)) duplicate = { key, offset: info.offset };
+            else set.add(key);
           }
         }
         break;
@@ -802,7 +838,10 @@ export async function readCsv(input: PayloadInput, state: ParseState, options: R
     }
     if (err) {
       const e = err as Error & { code?: string; lines?: number; column?: number | string; index?: number };
-      const loc: SourceLocation = { line: e.lines ?? core.info.lines };
+      // Report the line where the broken record starts (an unclosed quote runs to the end).
+      const info = core.info;
+      const recordStart = headerSeen ? prevEnd + 1 + (info.empty_lines - prevEmpty) + (info.comment_lines - prevComment) : skipLines + 1;
+      const loc: SourceLocation = { line: Math.min(recordStart, e.lines ?? recordStart) };
       if (typeof e.index === "number") loc.column = e.index + 1;
       const what =
         e.code === "CSV_QUOTE_NOT_CLOSED"

@@ -36,6 +36,7 @@ import { z } from "zod";
 import {
   baseOptionsShape,
   describeValueProblem,
+  isDecimalText,
   ParseState,
   readJson,
   validateOptions,
@@ -162,6 +163,8 @@ interface Context {
   basePeriod: string | null | undefined;
   /** Flat layout: dimension objects shared by observations with the same non-time key. */
   dimCache: Map<string, Record<string, string>>;
+  /** Attribute objects shared by observations: per series-attributes object, by raw observation values. */
+  attrCaches: WeakMap<object, Map<unknown, Record<string, string>>>;
 }
 
 const ACTIONS = new Set(["Information", "Append", "Merge", "Replace", "Delete"]);
@@ -623,7 +626,7 @@ class SdmxJsonReader {
         groups.push({ positions, attributes, seriesLevel: positions.every(([i]) => i < seriesLimit) });
       }
     }
-    return { ds, s, datasetId, baseDims, baseAttrs, groups, basePeriod, dimCache: new Map() };
+    return { ds, s, datasetId, baseDims, baseAttrs, groups, basePeriod, dimCache: new Map(), attrCaches: new WeakMap() };
   }
 
   /** Attribute value text, undefined when not set. Reports an index out of range. */
@@ -813,7 +816,12 @@ class SdmxJsonReader {
     const datasetId = ctx.datasetId;
     const noTime = s.time === null;
     let seriesDup: Set<string> | undefined;
-    const attrCache = obsAttrs.length ? new Map<string, Record<string, string>>() : null;
+    let attrCache: Map<unknown, Record<string, string>> | null = null;
+    if (obsAttrs.length) {
+      attrCache = ctx.attrCaches.get(seriesAttrs) ?? null;
+      if (!attrCache) ctx.attrCaches.set(seriesAttrs, (attrCache = new Map()));
+    }
+    const fastAttrPos = obsAttrs.length === 1 && obsGroups.length === 0 ? obsAttrPos[0]! : -1;
 
     for (const k in observations) {
       const arr = observations[k];
@@ -896,7 +904,7 @@ class SdmxJsonReader {
         if (t === "NaN") value = null;
         else {
           const n = t === "" ? NaN : Number(t);
-          if (Number.isNaN(n) || !/^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/.test(t)) {
+          if (Number.isNaN(n) || !isDecimalText(t)) {
             state.report("SDMX_VALUE_NOT_NUMERIC", { path: jsonPath([...obsPath, k, measurePos]) }, `${quote(raw)} is not a number`, raw);
             state.skip("issue");
             continue;
@@ -914,22 +922,28 @@ class SdmxJsonReader {
         state.skip("issue");
         continue;
       }
-      // Observation attributes.
+      // Observation attributes: objects shared between observations with the same raw values.
       let attributes = seriesAttrs;
       if (attrCache !== null || obsGroups.length) {
-        let cacheKey = "";
-        if (attrCache !== null) {
-          for (let i = 0; i < obsAttrPos.length; i++) {
-            const p = obsAttrPos[i]!;
-            const e = p >= 0 ? arr[p] : undefined;
-            cacheKey += typeof e === "number" ? `${e}|` : e === undefined ? "u|" : e === null ? "n|" : `${JSON.stringify(e)}|`;
+        let cacheKey: unknown;
+        if (fastAttrPos >= 0) {
+          const e = arr[fastAttrPos];
+          cacheKey = typeof e === "object" && e !== null ? JSON.stringify(e) : e;
+        } else {
+          let text = "";
+          if (attrCache !== null) {
+            for (let i = 0; i < obsAttrPos.length; i++) {
+              const p = obsAttrPos[i]!;
+              const e = p >= 0 ? arr[p] : undefined;
+              text += typeof e === "number" ? `${e}|` : e === undefined ? "u|" : e === null ? "n|" : `${JSON.stringify(e)}|`;
+            }
           }
-        }
-        if (obsGroups.length) {
-          for (const g of obsGroups) cacheKey += matches(g, coords) ? "1" : "0";
+          for (const g of obsGroups) text += matches(g, coords) ? "1" : "0";
+          cacheKey = text;
         }
         let cached = attrCache?.get(cacheKey);
         if (!cached) {
+          const issuesBefore = state.collector.count;
           cached = { ...seriesAttrs };
           for (const g of obsGroups) if (matches(g, coords)) Object.assign(cached, g.attributes);
           for (let i = 0; i < obsAttrs.length; i++) {
@@ -938,9 +952,8 @@ class SdmxJsonReader {
             const v = this.resolveAttr(a, p >= 0 ? arr[p] : undefined, { path: jsonPath([...obsPath, k, p]), field: a.id });
             if (v !== undefined) cached[a.id] = v;
           }
-          if (attrCache) {
-            if (attrCache.size < 1000) attrCache.set(cacheKey, cached);
-          }
+          // Values that raised an issue are not cached, so every observation carrying them is reported.
+          if (attrCache && state.collector.count === issuesBefore && attrCache.size < 1000) attrCache.set(cacheKey, cached);
         }
         attributes = cached;
       }

@@ -17,6 +17,7 @@ import { z } from "zod";
 import {
   baseOptionsShape,
   describeValueProblem,
+  isDecimalText,
   ParseState,
   readJsonDocument,
   validateOptions,
@@ -150,7 +151,7 @@ function read(root: Json, state: ParseState, opts: Options, sink: ObservationSin
     let value: number | null;
     if (raw === null || raw === undefined) value = null;
     else {
-      const n = typeof raw === "number" ? raw : typeof raw === "string" && /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/.test(raw.trim()) ? Number(raw) : NaN;
+      const n = typeof raw === "number" ? raw : typeof raw === "string" && isDecimalText(raw.trim()) ? Number(raw) : NaN;
       if (typeof raw !== "number" && Number.isNaN(n)) {
         state.report("WORLDBANK_VALUE_NOT_NUMERIC", { path: where("value"), field: "value" }, `${quoteValue(raw)} is not a number`, raw);
         state.skip("issue");
