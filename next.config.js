@@ -5,7 +5,9 @@ const nextConfig = {
   serverExternalPackages: ["@electric-sql/pglite", "pglite-prisma-adapter", "pg", "node-cron"],
   poweredByHeader: false,
   reactStrictMode: true,
-  typescript: { tsconfigPath: "tsconfig.json" },
+  // Types are checked by `npm run typecheck` (and CI) over the whole project; the build skips it
+  // so that `npm start` builds quickly.
+  typescript: { ignoreBuildErrors: true },
 };
 
 export default nextConfig;

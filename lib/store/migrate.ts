@@ -27,14 +27,15 @@ const MIGRATION_LOCK_KEY = 72707369;
 
 /** Migrations shipped with this version, in order. */
 export function listMigrations(dir = path.join(process.cwd(), "prisma", "migrations")): MigrationFile[] {
-  if (!fs.existsSync(dir)) return [];
+  // The app runs from the project folder (`next start`), so the migrations are read in place.
+  if (!fs.existsSync(/*turbopackIgnore: true*/ dir)) return [];
   return fs
-    .readdirSync(dir, { withFileTypes: true })
+    .readdirSync(/*turbopackIgnore: true*/ dir, { withFileTypes: true })
     .filter((d) => d.isDirectory() && /^\d{14}_[a-z0-9_]+$/.test(d.name))
     .map((d) => d.name)
     .sort()
     .map((name) => {
-      const sql = fs.readFileSync(path.join(dir, name, "migration.sql"), "utf8");
+      const sql = fs.readFileSync(/*turbopackIgnore: true*/ path.join(dir, name, "migration.sql"), "utf8");
       return { name, sql, checksum: createHash("sha256").update(sql).digest("hex") };
     });
 }

@@ -1,0 +1,142 @@
+/**
+ * One release in: parse every payload, map it to economies, concepts and units, and only when the
+ * whole release is clean, commit it as one vintage. The demo workspace, `ideafront import` and the
+ * scheduled fetch all come through here, so they behave the same.
+ */
+import type { Store } from "../store/db";
+import { commitRelease, type CommitResult } from "../store/vintages";
+import { parsePayload } from "../ingestion/parse";
+import type { PayloadFormat, PayloadInput } from "../ingestion/common";
+import { IngestError } from "../ingestion/errors";
+import { mapObservations, type MappingIssue } from "../ingestion/mapping";
+import type { SourceDefinition, SourceQuery } from "../ingestion/sources";
+import { canonicalRelease, ReleaseError } from "../ingestion/release";
+import type { MappedObservation } from "../ingestion/types";
+
+export interface ReleasePayload {
+  /** Bytes (or text) of one response or file. */
+  body: PayloadInput;
+  /** File name or URL, for error locations. */
+  name: string;
+  /** The query this payload answers, when it answers one. */
+  query?: SourceQuery;
+  /** Override of the definition's format (a file source may take several). */
+  format?: PayloadFormat;
+  /** Extra parser options (column mapping of a plain CSV file, decimal comma...). */
+  parserOptions?: Record<string, unknown>;
+}
+
+export interface ImportProblem {
+  payload: string;
+  code: string;
+  message: string;
+}
+
+/** A release that cannot be stored: every problem found, nothing written. */
+export class ImportError extends Error {
+  readonly problems: ImportProblem[];
+  constructor(problems: ImportProblem[]) {
+    const head = problems.slice(0, 5).map((p) => `${p.payload}: ${p.message} [${p.code}]`);
+    const more = problems.length > 5 ? `\n... and ${problems.length - 5} more problems` : "";
+    super(`The release was not stored (${problems.length} problem${problems.length === 1 ? "" : "s"}):\n${head.join("\n")}${more}`);
+    this.name = "ImportError";
+    this.problems = problems;
+  }
+}
+
+export interface PreparedRelease {
+  observations: MappedObservation[];
+  /** The publisher's own stamp from the payloads (newest prepared/updated), when given. */
+  releasedAt: Date | null;
+  notes: string[];
+  counts: { parsed: number; unmatched: number; skipped: number };
+}
+
+/**
+ * Parse and map all payloads of a release. Throws ImportError listing every problem (collect mode)
+ * when any payload has one; pure apart from reading the payload streams.
+ */
+export async function prepareRelease(def: SourceDefinition, payloads: readonly ReleasePayload[], opts: { nonNegativeConcepts?: boolean } = {}): Promise<PreparedRelease> {
+  const problems: ImportProblem[] = [];
+  const observations: MappedObservation[] = [];
+  const notes: string[] = [];
+  const counts = { parsed: 0, unmatched: 0, skipped: 0 };
+  let releasedAt: Date | null = null;
+  for (const p of payloads) {
+    const format = p.format ?? def.format;
+    let parsed;
+    try {
+      parsed = await parsePayload(format, p.body, { mode: "collect", file: p.name, ...(p.parserOptions ?? {}) });
+    } catch (err) {
+      if (err instanceof IngestError) {
+        problems.push({ payload: p.name, code: err.code, message: err.message });
+        continue;
+      }
+      throw err;
+    }
+    for (const issue of parsed.issues) problems.push({ payload: p.name, code: issue.code, message: issue.message });
+    if (parsed.counts.issues > parsed.issues.length) {
+      problems.push({ payload: p.name, code: "MORE_ISSUES", message: `${parsed.counts.issues - parsed.issues.length} further problems not listed` });
+    }
+    counts.parsed += parsed.counts.observations;
+    counts.skipped += parsed.counts.skipped;
+    for (const n of parsed.meta.notes) notes.push(`${p.name}: ${n}`);
+    if (parsed.meta.deletions.length) notes.push(`${p.name}: ${parsed.meta.deletions.length} deletion instructions ignored (a vintage is the whole release)`);
+    const stamp = parsed.meta.prepared ?? parsed.meta.datasets.find((d) => d.updated)?.updated;
+    if (stamp) {
+      const d = new Date(stamp);
+      if (!Number.isNaN(d.getTime()) && (!releasedAt || d > releasedAt)) releasedAt = d;
+    }
+    const mapped = mapObservations(def, parsed.observations, p.query);
+    counts.unmatched += mapped.unmatched;
+    for (const i of mapped.issues) problems.push({ payload: p.name, code: i.code, message: i.message });
+    if (opts.nonNegativeConcepts !== false) {
+      for (const o of mapped.observations) {
+        if (o.value !== null && o.value < 0 && NON_NEGATIVE.has(o.concept)) {
+          problems.push({ payload: p.name, code: "VALUE_NEGATIVE", message: `${o.economy} ${o.concept} ${o.period}: ${o.value} is negative, but the concept is a count or level` });
+        }
+      }
+    }
+    observations.push(...mapped.observations);
+  }
+  if (counts.unmatched) notes.push(`${counts.unmatched} observations matched none of the source's queries and were left out`);
+  try {
+    canonicalRelease(observations);
+  } catch (err) {
+    if (err instanceof ReleaseError) problems.push({ payload: payloads.map((p) => p.name).join(", "), code: err.code, message: err.message });
+    else throw err;
+  }
+  if (problems.length) throw new ImportError(problems);
+  return { observations, releasedAt, notes, counts };
+}
+
+/** Concepts whose values cannot be negative (counts and levels). */
+const NON_NEGATIVE = new Set<string>(["researchers_fte", "researchers_per_million", "researchers_per_thousand_employed", "researchers_headcount", "population", "employment", "hours", "human_capital", "gdp_real", "capital_services", "tfp_index", "patents", "rd_share_gdp"]);
+
+export interface ImportReleaseInput {
+  def: SourceDefinition;
+  label: string;
+  payloads: readonly ReleasePayload[];
+  economyNames?: Readonly<Record<string, string>>;
+  declaredEconomies?: readonly string[];
+  isDemo?: boolean;
+  releasedAt?: Date | null;
+  fetchedAt?: Date;
+}
+
+/** Parse, map, validate and commit one release. Nothing is written unless all of it is clean. */
+export async function importRelease(store: Store, input: ImportReleaseInput): Promise<CommitResult & { prepared: PreparedRelease }> {
+  const prepared = await prepareRelease(input.def, input.payloads);
+  const result = await commitRelease(store, {
+    source: input.def.name,
+    label: input.label,
+    releasedAt: input.releasedAt ?? prepared.releasedAt,
+    observations: prepared.observations,
+    economyNames: input.economyNames,
+    declaredEconomies: input.declaredEconomies,
+    notes: prepared.notes,
+    isDemo: input.isDemo,
+    fetchedAt: input.fetchedAt,
+  });
+  return { ...result, prepared };
+}

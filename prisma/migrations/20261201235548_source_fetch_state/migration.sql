@@ -1,0 +1,2 @@
+-- AlterTable
+ALTER TABLE "source" ADD COLUMN     "fetch_state" JSONB;

@@ -1,0 +1,38 @@
+// Compile the command line (lib/cli) into dist/cli.mjs with esbuild, so `npx ideafront` starts
+// fast (no TypeScript transpiling at each start). Dependencies stay in node_modules (external).
+// Runs at `npm install` (postinstall) and by `npm run build:cli`.
+import { build } from "esbuild";
+import { createRequire } from "node:module";
+import path from "node:path";
+
+const root = path.resolve(import.meta.dirname, "..");
+const started = Date.now();
+await build({
+  entryPoints: [path.join(root, "lib", "cli", "main.ts")],
+  outfile: path.join(root, "dist", "cli.mjs"),
+  bundle: true,
+  platform: "node",
+  target: "node20",
+  format: "esm",
+  packages: "external",
+  tsconfig: path.join(root, "tsconfig.json"),
+  sourcemap: "linked",
+  logLevel: "warning",
+  plugins: [bundleJsonFromPackages()],
+  // The generated Prisma client sets __dirname itself; give bundled CommonJS-style code a require.
+  banner: { js: "import { createRequire as __ifCreateRequire } from 'node:module'; const require = __ifCreateRequire(import.meta.url);" },
+});
+console.log(`ideafront command line compiled to dist/cli.mjs in ${Date.now() - started} ms`);
+
+/** JSON files of packages are bundled (Node 20 would need an import attribute to load them). */
+function bundleJsonFromPackages() {
+  const require = createRequire(path.join(root, "package.json"));
+  return {
+    name: "bundle-package-json",
+    setup(b) {
+      b.onResolve({ filter: /\.json$/ }, (args) =>
+        args.path.startsWith(".") || args.path.startsWith("@/") || path.isAbsolute(args.path) ? undefined : { path: require.resolve(args.path) },
+      );
+    },
+  };
+}
