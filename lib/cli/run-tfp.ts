@@ -1,0 +1,38 @@
+/**
+ * Implementation of `ideafront tfp` (loaded only when the command runs): read the accounts, run
+ * Tornqvist growth accounting per economy (lib/estimation tornqvistTfpGrowth), write the CSV.
+ */
+import { readFile, writeFile } from "node:fs/promises";
+import { stringify } from "csv-stringify/sync";
+import { tornqvistTfpGrowth } from "../estimation/growth-accounting";
+import type { TfpCommandOptions } from "./commands/tfp";
+import { readAccountsCsv } from "./panel-csv";
+import { csvNumber } from "./run-fit";
+import { UsageError, progress } from "./shared";
+
+/** Growth accounting of every economy of an accounts file, as CSV rows economy,year,tfp,tfp_growth (plus notes). */
+export function tfpCsv(text: string, file: string): { csv: string; notes: string[]; economies: number } {
+  const { economies } = readAccountsCsv(text, file);
+  const rows: string[][] = [["economy", "year", "tfp", "tfp_growth"]];
+  const notes: string[] = [];
+  for (const [economy, accounts] of economies) {
+    const result = tornqvistTfpGrowth(accounts);
+    for (const w of result.warnings) notes.push(`${economy}: ${w}`);
+    for (const y of result.years) rows.push([economy, String(y.year), csvNumber(y.tfpIndex), csvNumber(y.tfpGrowth)]);
+  }
+  return { csv: stringify(rows, { eof: true }), notes, economies: economies.size };
+}
+
+/** Runs `tfp` with parsed options; throws UsageError (exit 2) for input problems. */
+export async function runTfp(opts: TfpCommandOptions): Promise<void> {
+  let text: string;
+  try {
+    text = await readFile(opts.accounts, "utf8");
+  } catch (err) {
+    throw new UsageError(`Cannot read the accounts file ${opts.accounts}: ${(err as NodeJS.ErrnoException).code === "ENOENT" ? "no such file" : (err as Error).message}.`);
+  }
+  const { csv, notes, economies } = tfpCsv(text, opts.accounts);
+  await writeFile(opts.out, csv);
+  for (const note of notes) progress(note);
+  progress(`Growth accounting for ${economies} economies; wrote ${opts.out}.`);
+}
