@@ -18,6 +18,8 @@ export interface StoreTarget {
   kind: "embedded" | "postgres";
   /** Opens a fresh, migrated store. */
   open(): Promise<Store>;
+  /** Opens the last store again (after closing it), as a restart would. */
+  reopen(): Promise<Store>;
   /** Connection settings of the last opened store (for child processes). */
   env(): Record<string, string>;
   /** Removes what open() created. */
@@ -63,6 +65,11 @@ function embeddedTarget(): StoreTarget {
       await migrate(store);
       return store;
     },
+    async reopen() {
+      const store = await openStore({ dataDir: last });
+      await migrate(store);
+      return store;
+    },
     env: () => ({ IDEAFRONT_DATA: last }),
     async cleanup() {
       for (const d of dirs) fs.rmSync(d, { recursive: true, force: true });
@@ -91,6 +98,11 @@ function postgresTarget(adminUrl: string): StoreTarget {
       const u = new URL(adminUrl);
       u.pathname = `/${name}`;
       lastUrl = u.toString();
+      const store = await openStore({ databaseUrl: lastUrl });
+      await migrate(store);
+      return store;
+    },
+    async reopen() {
       const store = await openStore({ databaseUrl: lastUrl });
       await migrate(store);
       return store;
