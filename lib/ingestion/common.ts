@@ -805,16 +805,25 @@ export async function readCsv(input: PayloadInput, state: ParseState, options: R
   let headBytes = 0;
   let stopped = false;
   let headerSeen = false;
+  // Line bookkeeping. csv-parse reports the line a record ends on, but inside quoted fields it
+  // counts "\r\n" as two lines; so the start of each record is derived from the previous one:
+  // its start, plus the line breaks inside its fields, plus one, plus empty lines skipped since.
   let prevEnd = skipLines;
   let prevEmpty = 0;
   let prevComment = 0;
+  let nextStart = skipLines + 1;
 
   const push = (record: string[]): void => {
     if (stopped || core === null) return;
     const info = core.info;
-    // The header is one line; a data record starts after the previous record's last line and
-    // any empty lines skipped since (csv-parse reports the line a record ends on).
-    const start = headerSeen ? prevEnd + 1 + (info.empty_lines - prevEmpty) + (info.comment_lines - prevComment) : info.lines;
+    const skipped = info.empty_lines - prevEmpty + (info.comment_lines - prevComment);
+    const start = headerSeen ? nextStart + skipped : info.lines;
+    let breaks = 0;
+    if (info.lines - prevEnd > 1 + skipped && headerSeen) {
+      // A record with quoted line breaks: count them as a reader would (CRLF, LF or CR = one).
+      for (const field of record) breaks += lineBreaks(field);
+    }
+    nextStart = start + 1 + breaks;
     prevEnd = info.lines;
     prevEmpty = info.empty_lines;
     prevComment = info.comment_lines;
@@ -840,7 +849,7 @@ export async function readCsv(input: PayloadInput, state: ParseState, options: R
       const e = err as Error & { code?: string; lines?: number; column?: number | string; index?: number };
       // Report the line where the broken record starts (an unclosed quote runs to the end).
       const info = core.info;
-      const recordStart = headerSeen ? prevEnd + 1 + (info.empty_lines - prevEmpty) + (info.comment_lines - prevComment) : skipLines + 1;
+      const recordStart = headerSeen ? nextStart + (info.empty_lines - prevEmpty) + (info.comment_lines - prevComment) : skipLines + 1;
       const loc: SourceLocation = { line: Math.min(recordStart, e.lines ?? recordStart) };
       if (typeof e.index === "number") loc.column = e.index + 1;
       const what =
@@ -920,6 +929,14 @@ export async function readCsv(input: PayloadInput, state: ParseState, options: R
     return false;
   }
   return true;
+}
+
+/** Line breaks in a text: CRLF, LF or a lone CR each count once. */
+function lineBreaks(text: string): number {
+  let n = 0;
+  for (let i = text.indexOf("\n"); i >= 0; i = text.indexOf("\n", i + 1)) n++;
+  for (let i = text.indexOf("\r"); i >= 0; i = text.indexOf("\r", i + 1)) if (text.charCodeAt(i + 1) !== 10) n++;
+  return n;
 }
 
 /**

@@ -60,6 +60,21 @@ interface DimensionInfo {
   categories: string[];
 }
 
+/**
+ * Coordinates (category positions) of cell `index` in a JSON-stat value array with dimension
+ * sizes `size`: row-major, the last dimension varying fastest.
+ * Example: cellCoordinates(5, [3, 2, 4]) -> [0, 1, 1]
+ */
+export function cellCoordinates(index: number, size: readonly number[]): number[] {
+  const out = new Array<number>(size.length);
+  let rest = index;
+  for (let d = size.length - 1; d >= 0; d--) {
+    out[d] = rest % size[d]!;
+    rest = Math.floor(rest / size[d]!);
+  }
+  return out;
+}
+
 class JsonStatReader {
   private readonly state: ParseState;
   private readonly opts: Options;
