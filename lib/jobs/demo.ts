@@ -10,6 +10,8 @@ import { upsertUser, type Role } from "../store/users";
 import { parseSourceDefinition, type SourceDefinition } from "../ingestion/sources";
 import { DEMO_SOURCE, DEMO_VINTAGE_COUNT, demoParameters, demoReleaseSdmxCsv } from "../demo/scenario";
 import { importRelease } from "./import-release";
+import { getModelInputs, setModelInputs } from "../store/panel";
+import { refitAll } from "./refit";
 
 export const DEMO_ACCOUNTS: readonly { email: string; name: string; role: Role }[] = [
   { email: "editor@demo.ideafront.test", name: "Demo editor", role: "EDITOR" },
@@ -45,12 +47,19 @@ export interface DemoLoadResult {
  * Make sure the demo workspace is complete. `onProgress` receives one line per release.
  * The demo release i is served as the SDMX-CSV file the demo office would publish on its date.
  */
-export async function ensureDemoWorkspace(store: Store, opts: { password: string; onProgress?: (line: string) => void }): Promise<DemoLoadResult> {
+export async function ensureDemoWorkspace(store: Store, opts: { password: string; onProgress?: (line: string) => void; refit?: boolean }): Promise<DemoLoadResult> {
   const def = demoSourceDefinition();
   await upsertSource(store, { name: def.name, title: def.title, kind: def.kind, format: def.format, config: def, enabled: def.enabled, schedule: def.schedule, timezone: def.timezone, isDemo: true });
   const stored = new Set((await listVintages(store, def.name)).map((v) => v.label));
   const names = Object.fromEntries(demoParameters.economies.map((e) => [e.code, `${e.name}`]));
   const declared = demoParameters.economies.map((e) => e.code);
+  if (!(await getModelInputs(store))) {
+    await setModelInputs(store, {
+      researchers: { source: def.name, concept: "researchers_fte" },
+      tfp: { source: def.name, concept: "tfp_index" },
+      population: { source: def.name, concept: "population" },
+    });
+  }
   const imported: string[] = [];
   for (let i = 0; i < DEMO_VINTAGE_COUNT; i++) {
     const label = demoParameters.vintages[i]!.label;
@@ -67,6 +76,8 @@ export async function ensureDemoWorkspace(store: Store, opts: { password: string
     });
     imported.push(label);
     opts.onProgress?.(`demo release ${label}: ${res.counts.added} added, ${res.counts.revised} revised, ${res.counts.removed} removed`);
+    // Keep each vintage's estimate: refit the active specs as of this release.
+    if (opts.refit !== false) await refitAll(store, { onProgress: (l) => opts.onProgress?.(`  refit ${l}`) });
   }
   for (const a of DEMO_ACCOUNTS) {
     const existing = await store.prisma.user.findUnique({ where: { email: a.email } });

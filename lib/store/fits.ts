@@ -1,0 +1,184 @@
+/**
+ * Model specs and fit sets in the store. A fit set is one run of one spec over the panel as of
+ * given vintages; it is written in one transaction with all its economies' fits, never half.
+ */
+import { NAMED_KPF_SPECS, type KpfSpec } from "../estimation/kpf-spec";
+import type { KpfEconomyResult } from "../estimation/kpf-estimate";
+import type { Store } from "./db";
+import type { AsOf } from "./panel";
+
+/** Built-in specs: the team default (headline) and the single-economy reference (diagnostic). */
+export async function ensureBuiltinSpecs(store: Store): Promise<void> {
+  for (const [name, spec] of Object.entries(NAMED_KPF_SPECS)) {
+    const existing = await store.prisma.modelSpec.findUnique({ where: { name } });
+    if (existing) {
+      if (existing.builtin) await store.prisma.modelSpec.update({ where: { name }, data: { spec: spec as object, description: spec.description } });
+      continue;
+    }
+    await store.prisma.modelSpec.create({
+      data: {
+        name,
+        description: spec.description,
+        spec: spec as object,
+        builtin: true,
+        isDefault: name === "team-default",
+        active: name === "team-default" || name === "reference",
+      },
+    });
+  }
+}
+
+export interface StoredSpec {
+  id: number;
+  name: string;
+  description: string;
+  spec: KpfSpec;
+  active: boolean;
+  isDefault: boolean;
+  builtin: boolean;
+}
+
+export async function listSpecs(store: Store, opts: { activeOnly?: boolean } = {}): Promise<StoredSpec[]> {
+  const rows = await store.prisma.modelSpec.findMany({ where: opts.activeOnly ? { active: true } : {}, orderBy: [{ isDefault: "desc" }, { name: "asc" }] });
+  return rows.map((r) => ({ id: r.id, name: r.name, description: r.description, spec: r.spec as unknown as KpfSpec, active: r.active, isDefault: r.isDefault, builtin: r.builtin }));
+}
+
+export function asOfLabel(asOf: AsOf): string {
+  return Object.entries(asOf)
+    .sort(([a], [b]) => (a < b ? -1 : 1))
+    .map(([source, v]) => `${source} ${v.label}`)
+    .join(" · ");
+}
+
+export interface FitSetInput {
+  specId: number;
+  asOf: AsOf;
+  dataHash: string;
+  codeVersion: string;
+  results: readonly KpfEconomyResult[];
+  /** Per-economy input hash (so the next run knows what changed). */
+  economyHashes: Readonly<Record<string, string>>;
+  summary?: Record<string, unknown>;
+  warnings?: readonly string[];
+  jobRunId?: number | null;
+}
+
+const finite = (x: number | null | undefined): number | null => (x === null || x === undefined || !Number.isFinite(x) ? null : x);
+
+/** Store a fit set and all its fits in one transaction; returns its id. */
+export async function saveFitSet(store: Store, input: FitSetInput): Promise<number> {
+  return store.transaction(async (tx) => {
+    const set = await tx.query<{ id: number }>(
+      `INSERT INTO fit_set (spec_id, as_of, as_of_label, data_hash, code_version, summary, warnings, job_run_id)
+       VALUES ($1, $2::jsonb, $3, $4, $5, $6::jsonb, $7::jsonb, $8) RETURNING id`,
+      [input.specId, JSON.stringify(input.asOf), asOfLabel(input.asOf), input.dataHash, input.codeVersion, JSON.stringify(input.summary ?? null), JSON.stringify(input.warnings ?? []), input.jobRunId ?? null],
+    );
+    const id = set.rows[0]!.id;
+    const rs = input.results;
+    if (rs.length) {
+      await tx.query(
+        `INSERT INTO fit (fit_set_id, economy_code, nobs, gamma, theta, log_b, se_gamma, se_theta, n, g_star, g_star_lo, g_star_hi, p_theta_ge_1, regime, details, warnings, data_hash)
+         SELECT $1::int, e, nobs, g, th, lb, sg, st, n, gs, lo, hi, p, reg, d::jsonb, w::jsonb, h
+           FROM unnest($2::text[], $3::int[], $4::float8[], $5::float8[], $6::float8[], $7::float8[], $8::float8[], $9::float8[], $10::float8[], $11::float8[], $12::float8[], $13::float8[], $14::text[], $15::text[], $16::text[], $17::text[])
+             AS t(e, nobs, g, th, lb, sg, st, n, gs, lo, hi, p, reg, d, w, h)`,
+        [
+          id,
+          rs.map((r) => r.economy),
+          rs.map((r) => r.nobs),
+          rs.map((r) => finite(r.gamma)),
+          rs.map((r) => finite(r.theta)),
+          rs.map((r) => finite(r.logB)),
+          rs.map((r) => finite(r.seGamma)),
+          rs.map((r) => finite(r.seTheta)),
+          rs.map((r) => finite(r.n)),
+          rs.map((r) => finite(r.gStar)),
+          rs.map((r) => (r.gStarLo === -Infinity ? null : finite(r.gStarLo))),
+          rs.map((r) => (r.gStarHi === Infinity ? null : finite(r.gStarHi))),
+          rs.map((r) => finite(r.pThetaGe1)),
+          rs.map((r) => r.regime),
+          rs.map((r) => JSON.stringify(r.details, (_k, v) => (typeof v === "number" && !Number.isFinite(v) ? String(v) : v))),
+          rs.map((r) => JSON.stringify(r.warnings)),
+          rs.map((r) => input.economyHashes[r.economy] ?? input.dataHash),
+        ],
+      );
+    }
+    return id;
+  });
+}
+
+export interface FitSetInfo {
+  id: number;
+  specId: number;
+  specName: string;
+  asOf: AsOf;
+  asOfLabel: string;
+  dataHash: string;
+  codeVersion: string;
+  createdAt: Date;
+  summary: Record<string, unknown> | null;
+}
+
+function toInfo(r: { id: number; specId: number; asOf: unknown; asOfLabel: string; dataHash: string; codeVersion: string; createdAt: Date; summary: unknown; spec: { name: string } }): FitSetInfo {
+  return { id: r.id, specId: r.specId, specName: r.spec.name, asOf: r.asOf as AsOf, asOfLabel: r.asOfLabel, dataHash: r.dataHash, codeVersion: r.codeVersion, createdAt: r.createdAt, summary: (r.summary as Record<string, unknown>) ?? null };
+}
+
+/** The newest fit set of a spec, or null. */
+export async function latestFitSet(store: Store, specId: number): Promise<FitSetInfo | null> {
+  const r = await store.prisma.fitSet.findFirst({ where: { specId }, orderBy: { id: "desc" }, include: { spec: { select: { name: true } } } });
+  return r ? toInfo(r) : null;
+}
+
+/** All fit sets of a spec, oldest first. */
+export async function fitSetHistory(store: Store, specId: number): Promise<FitSetInfo[]> {
+  const rows = await store.prisma.fitSet.findMany({ where: { specId }, orderBy: { id: "asc" }, include: { spec: { select: { name: true } } } });
+  return rows.map(toInfo);
+}
+
+export interface StoredFit {
+  fitSetId: number;
+  economy: string;
+  economyName: string;
+  nobs: number;
+  gamma: number | null;
+  theta: number | null;
+  logB: number | null;
+  seGamma: number | null;
+  seTheta: number | null;
+  n: number | null;
+  gStar: number | null;
+  gStarLo: number | null;
+  gStarHi: number | null;
+  pThetaGe1: number | null;
+  regime: string | null;
+  warnings: string[];
+  details: Record<string, unknown> | null;
+  dataHash: string;
+}
+
+export async function fitsOfSet(store: Store, fitSetId: number, opts: { economy?: string } = {}): Promise<StoredFit[]> {
+  const rows = await store.prisma.fit.findMany({
+    where: { fitSetId, ...(opts.economy ? { economyCode: opts.economy } : {}) },
+    include: { economy: { select: { name: true } } },
+    orderBy: { economyCode: "asc" },
+  });
+  return rows.map((f) => ({
+    fitSetId: f.fitSetId,
+    economy: f.economyCode,
+    economyName: f.economy.name,
+    nobs: f.nobs,
+    gamma: f.gamma,
+    theta: f.theta,
+    logB: f.logB,
+    seGamma: f.seGamma,
+    seTheta: f.seTheta,
+    n: f.n,
+    gStar: f.gStar,
+    gStarLo: f.gStarLo,
+    gStarHi: f.gStarHi,
+    pThetaGe1: f.pThetaGe1,
+    regime: f.regime,
+    warnings: (f.warnings as string[]) ?? [],
+    details: (f.details as Record<string, unknown>) ?? null,
+    dataHash: f.dataHash,
+  }));
+}
