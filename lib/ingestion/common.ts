@@ -286,10 +286,9 @@ export class ByteScanner {
   private carry: Buffer = Buffer.alloc(0);
   private chunkStart = 0;
   private chunk: Buffer = Buffer.alloc(0);
-  private prevChunk: Buffer = Buffer.alloc(0);
-  private prevStart = 0;
-  private prevLines = 0;
-  private prevCol = 0;
+  /** Recent chunks with their line/column bases, so a token that began a few chunks back can be placed. */
+  private history: { chunk: Buffer; start: number; lines: number; col: number }[] = [];
+  private historyBytes = 0;
   /** Newlines before the current chunk, and characters since the last of them. */
   private lines = 0;
   private col = 0;
@@ -398,10 +397,11 @@ export class ByteScanner {
   /** Call after the current chunk has been fully processed. */
   advance(): void {
     const chunk = this.chunk;
-    this.prevChunk = chunk;
-    this.prevStart = this.chunkStart;
-    this.prevLines = this.lines;
-    this.prevCol = this.col;
+    this.history.push({ chunk, start: this.chunkStart, lines: this.lines, col: this.col });
+    this.historyBytes += chunk.length;
+    while (this.history.length > 2 && (this.history.length > 64 || this.historyBytes - this.history[0]!.chunk.length >= 1 << 18)) {
+      this.historyBytes -= this.history.shift()!.chunk.length;
+    }
     let nl = -1;
     let count = 0;
     for (let i = chunk.indexOf(10); i >= 0; i = chunk.indexOf(10, i + 1)) {
@@ -425,11 +425,17 @@ export class ByteScanner {
     let start = this.chunkStart;
     let lines = this.lines;
     let col = this.col;
-    if (abs < start && abs >= this.prevStart) {
-      chunk = this.prevChunk;
-      start = this.prevStart;
-      lines = this.prevLines;
-      col = this.prevCol;
+    if (abs < start) {
+      for (let i = this.history.length - 1; i >= 0; i--) {
+        const h = this.history[i]!;
+        if (abs >= h.start) {
+          chunk = h.chunk;
+          start = h.start;
+          lines = h.lines;
+          col = h.col;
+          break;
+        }
+      }
     }
     const rel = Math.max(0, Math.min(abs - start, chunk.length));
     let nl = -1;

@@ -293,27 +293,31 @@ class JsonStatReader {
         }
         period = pt;
       }
-      const where = dense ? p("value", cell) : p("value", String(cell));
+      const where = (): string => (dense ? p("value", cell) : p("value", String(cell)));
       let v: number | null;
       if (raw === null) v = null;
       else if (typeof raw === "number") {
         const problem = valueProblem(raw, this.opts.nonNegative);
         if (problem) {
-          state.report(problem, { path: where }, describeValueProblem(problem, raw), raw);
+          state.report(problem, { path: where() }, describeValueProblem(problem, raw), raw);
           state.skip("issue");
           return;
         }
         v = raw;
       } else {
-        state.report("JSONSTAT_VALUE_NOT_NUMERIC", { path: where }, `${quoteValue(raw)} is not a number`, raw);
+        state.report("JSONSTAT_VALUE_NOT_NUMERIC", { path: where() }, `${quoteValue(raw)} is not a number`, raw);
         state.skip("issue");
         return;
       }
-      const o: ParsedObservation = { dimensions, period, value: v, attributes: attributesFor(cell) };
-      const withDataset: ParsedObservation = datasetId !== undefined ? { ...o, dataset: datasetId } : o;
-      const final: ParsedObservation = this.opts.locations ? { ...withDataset, location: { path: where } } : withDataset;
+      const attributes = attributesFor(cell);
+      let o: ParsedObservation;
+      if (this.opts.locations) {
+        o = datasetId !== undefined ? { dimensions, period, value: v, attributes, dataset: datasetId, location: { path: where() } } : { dimensions, period, value: v, attributes, location: { path: where() } };
+      } else {
+        o = datasetId !== undefined ? { dimensions, period, value: v, attributes, dataset: datasetId } : { dimensions, period, value: v, attributes };
+      }
       state.counts.observations++;
-      this.sink(final);
+      this.sink(o);
     };
     if (dense) {
       for (let i = 0; i < dense.length; i++) emit(i, dense[i]);

@@ -42,6 +42,16 @@ describe("SDMX-JSON streaming", () => {
     }
   });
 
+  it("places a duplicate member name by where its token starts, even chunks back", async () => {
+    const text = TEXT.replace('"0": [2.5], "1": [2.6]', '"0": [2.5], "0": [2.6]');
+    const index = text.lastIndexOf('"0": [2.6]');
+    const line = text.slice(0, index).split("\n").length;
+    const column = [...text.slice(text.lastIndexOf("\n", index - 1) + 1, index)].length + 1;
+    for (const input of [text, chunks(Buffer.from(text), 1)]) {
+      await expect(parseSdmxJson(input)).rejects.toMatchObject({ code: "JSON_DUPLICATE_KEY", location: { line, column } });
+    }
+  });
+
   it("skips a leading byte-order mark", async () => {
     const r = await parseSdmxJson(Buffer.concat([Buffer.from([0xef, 0xbb, 0xbf]), Buffer.from(TEXT)]));
     expect(r.counts.observations).toBe(4);

@@ -228,7 +228,6 @@ class SdmxJsonReader {
   private readonly datasets: DataSet[] = [];
   private readonly duplicates = new Map<string, Set<string>>();
   private hasData = false;
-  private structureCount = 0;
 
   constructor(state: ParseState, opts: Options, sink: ObservationSink) {
     this.state = state;
@@ -381,7 +380,6 @@ class SdmxJsonReader {
   }
 
   private onStructure(index: number, path: (string | number)[], value: Json): void {
-    this.structureCount++;
     const s = this.compile(index, path, value);
     this.structures[index] = s;
     for (const ds of this.datasets) {
