@@ -113,6 +113,7 @@ export interface ParseResult extends ParseSummary {
 
 export type ObservationSink = (observation: ParsedObservation) => void;
 
+/** An empty PayloadMeta for a format. */
 export function newMeta(format: PayloadFormat): PayloadMeta {
   return { format, datasets: [], deletions: [], links: [], serviceErrors: [], skips: {}, notes: [] };
 }

@@ -136,6 +136,7 @@ export class IngestError extends Error {
   }
 }
 
+/** Type guard for IngestError (e.g. in a route handler's catch). */
 export function isIngestError(e: unknown): e is IngestError {
   return e instanceof IngestError;
 }
