@@ -18,6 +18,7 @@ program
 type Loader = () => Promise<{ register(program: Command): void }>;
 const commands: Loader[] = [
   () => import("./commands/setup"),
+  () => import("./commands/data"),
   () => import("./commands/fit"),
   () => import("./commands/tfp"),
 ];

@@ -43,7 +43,8 @@ export function reportError(err: unknown): number {
     console.error(err.message);
     return 1;
   }
-  if (e?.name === "IngestError" || e?.name === "MigrationError" || e?.name === "ReleaseError" || e?.name === "ImportError") {
+  const known = ["IngestError", "MigrationError", "ReleaseError", "ImportError", "SourceDefinitionError", "ConnectorError", "FetchError", "KpfSpecError"];
+  if (e?.name && known.includes(e.name)) {
     console.error(e.message);
     return 1;
   }

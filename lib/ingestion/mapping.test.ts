@@ -39,6 +39,16 @@ describe("mapping observations to economies, concepts and units", () => {
     expect(r.issues).toEqual([expect.objectContaining({ code: "MAP_UNKNOWN_ECONOMY", value: "EU27_2020", index: 1 })]);
   });
 
+  it("reports an unknown code once with its count and place, or skips such codes when asked", () => {
+    const rows = [1, 2, 3].map((i) => ({ ...raw({ REF_AREA: "EU28", MEASURE: "POP" }, i), location: { line: i + 1 } }));
+    const r = mapObservations(def, rows);
+    expect(r.issues).toHaveLength(1);
+    expect(r.issues[0]!.message).toBe('line 2: economy code "EU28" has no ISO 3166-1 alpha-3 equivalent (map it in economyCodeMap, or skip such codes) (3 observations)');
+    const skipped = mapObservations(def, rows, undefined, { skipUnknownEconomies: true });
+    expect(skipped.issues).toEqual([]);
+    expect(skipped.skippedEconomies).toEqual({ EU28: 3 });
+  });
+
   it("keeps explicitly missing values as null", () => {
     expect(mapObservations(def, [raw({ REF_AREA: "FR", MEASURE: "POP" }, null)]).observations[0]!.value).toBeNull();
   });

@@ -16,9 +16,16 @@ import type { MappedObservation, RawObservation } from "./types";
 export interface MappingIssue {
   code: "MAP_NO_ECONOMY" | "MAP_UNKNOWN_ECONOMY" | "MAP_NO_UNIT";
   message: string;
-  /** Index of the observation in its payload. */
+  /** Index of the (first) observation in its payload. */
   index: number;
   value?: string;
+  /** How many observations share this problem (unknown economy codes are reported once per code). */
+  count?: number;
+}
+
+export interface MappingOptions {
+  /** Leave out observations whose economy code has no ISO 3166-1 alpha-3 equivalent (counted in `skippedEconomies`), instead of reporting them. */
+  skipUnknownEconomies?: boolean;
 }
 
 export interface MappingResult {
@@ -26,6 +33,15 @@ export interface MappingResult {
   issues: MappingIssue[];
   /** Observations that matched no query (other series of the same dataset). */
   unmatched: number;
+  /** With skipUnknownEconomies: codes left out and how many observations each had. */
+  skippedEconomies: Record<string, number>;
+}
+
+function where(o: RawObservation, index: number): string {
+  const l = o.location;
+  if (l?.line) return `line ${l.line}`;
+  if (l?.path) return l.path;
+  return `observation ${index + 1}`;
 }
 
 const STATUS_ATTRIBUTES = ["OBS_STATUS", "obs_status", "Flag Codes", "status"];
@@ -56,10 +72,13 @@ export function mapObservations(
   def: Pick<SourceDefinition, "queries" | "economyCodeMap">,
   raws: Iterable<RawObservation>,
   query?: SourceQuery,
+  options: MappingOptions = {},
 ): MappingResult {
   const candidates = query ? [query] : def.queries;
   const observations: MappedObservation[] = [];
   const issues: MappingIssue[] = [];
+  const unknown = new Map<string, MappingIssue>();
+  const skippedEconomies: Record<string, number> = {};
   let unmatched = 0;
   let index = -1;
   for (const o of raws) {
@@ -71,17 +90,28 @@ export function mapObservations(
     }
     const rawEconomy = o.dimensions[q.economyDimension];
     if (rawEconomy === undefined) {
-      issues.push({ code: "MAP_NO_ECONOMY", message: `observation ${index + 1} has no ${q.economyDimension} dimension`, index });
+      issues.push({ code: "MAP_NO_ECONOMY", message: `${where(o, index)}: no ${q.economyDimension} dimension or column`, index });
       continue;
     }
     const economy = mapEconomyCode(def, rawEconomy);
     if (!economy) {
-      issues.push({ code: "MAP_UNKNOWN_ECONOMY", message: `economy code "${rawEconomy}" has no ISO 3166-1 alpha-3 equivalent (add it to economyCodeMap)`, index, value: rawEconomy });
+      if (options.skipUnknownEconomies) {
+        skippedEconomies[rawEconomy] = (skippedEconomies[rawEconomy] ?? 0) + 1;
+        continue;
+      }
+      const seen = unknown.get(rawEconomy);
+      if (seen) seen.count = (seen.count ?? 1) + 1;
+      else {
+        const issue: MappingIssue = { code: "MAP_UNKNOWN_ECONOMY", message: "", index, value: rawEconomy, count: 1 };
+        issue.message = `${where(o, index)}: economy code "${rawEconomy}" has no ISO 3166-1 alpha-3 equivalent (map it in economyCodeMap, or skip such codes)`;
+        unknown.set(rawEconomy, issue);
+        issues.push(issue);
+      }
       continue;
     }
     const unit = unitOf(q, o);
     if (!unit) {
-      issues.push({ code: "MAP_NO_UNIT", message: `observation ${index + 1} has no ${q.unit.slice(1, -1)} for its unit`, index });
+      issues.push({ code: "MAP_NO_UNIT", message: `${where(o, index)}: no ${q.unit.slice(1, -1)} for its unit`, index });
       continue;
     }
     observations.push({
@@ -94,5 +124,6 @@ export function mapObservations(
       status: statusOf(o),
     });
   }
-  return { observations, issues, unmatched };
+  for (const i of unknown.values()) if ((i.count ?? 1) > 1) i.message += ` (${i.count} observations)`;
+  return { observations, issues, unmatched, skippedEconomies };
 }

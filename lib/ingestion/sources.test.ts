@@ -52,7 +52,7 @@ describe("parseSourceDefinition", () => {
     expect(def.retries).toBe(3);
     expect(def.maxBytes).toBe(50 * 1024 * 1024);
     expect(def.paging).toEqual({ perPage: 1000, maxPages: 200 });
-    expect(def.queries[0]).toMatchObject({ id: "SP.POP.TOTL", scale: 1, economyDimension: "countryiso3code", filters: {} });
+    expect(def.queries[0]).toMatchObject({ id: "SP.POP.TOTL", scale: 1, economyDimension: "country", filters: {} });
     expect(parseSourceDefinition(sdmx).queries[0]).toMatchObject({ id: "A.FRA+DEU.RSE", economyDimension: "REF_AREA" });
   });
 

@@ -36,12 +36,13 @@ export const FORMATS_BY_KIND: Readonly<Record<SourceKind, readonly SourceFormat[
 /**
  * The dimension that carries the economy when a query does not name one: REF_AREA is the SDMX
  * cross-domain concept for the reference area; Eurostat's JSON-stat datasets call it geo; World
- * Bank observations carry `countryiso3code`. Files and demo sources must name theirs.
+ * Bank observations carry the economy in the parser's `country` dimension (from countryiso3code).
+ * Files and demo sources must name theirs.
  */
 export const DEFAULT_ECONOMY_DIMENSION: Readonly<Partial<Record<SourceKind, string>>> = {
   sdmx: "REF_AREA",
   jsonstat: "geo",
-  worldbank: "countryiso3code",
+  worldbank: "country",
   demo: "economy",
 };
 
@@ -144,7 +145,8 @@ export const sourceDefinitionSchema = sourceDefinitionObject
     if (!FORMATS_BY_KIND[def.kind].includes(def.format)) {
       issue(["format"], `format "${def.format}" does not fit kind "${def.kind}" (allowed: ${FORMATS_BY_KIND[def.kind].join(", ")})`);
     }
-    if (def.kind !== "demo") {
+    // A file source without a URL is import-only (`ideafront import`); with one it can be fetched.
+    if (def.kind !== "demo" && !(def.kind === "file" && def.baseUrl === undefined && def.urlTemplate === undefined)) {
       if (def.baseUrl === undefined) issue(["baseUrl"], `is required for kind "${def.kind}"`);
       if (def.urlTemplate === undefined) issue(["urlTemplate"], `is required for kind "${def.kind}"`);
     }

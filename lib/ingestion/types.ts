@@ -64,3 +64,21 @@ export interface MappedObservation {
   /** Status flag (OBS_STATUS, flag code), if any. */
   readonly status?: string | null;
 }
+
+/** The unit each concept is usually published in (used when an import does not say). */
+export const DEFAULT_UNITS: Readonly<Record<Concept, string>> = {
+  researchers_fte: "full-time equivalent",
+  researchers_per_million: "per million people",
+  researchers_per_thousand_employed: "per thousand employed",
+  researchers_headcount: "persons",
+  population: "persons",
+  employment: "persons",
+  hours: "hours per worker per year",
+  human_capital: "index",
+  gdp_real: "constant national prices",
+  capital_services: "index",
+  labour_share: "share of GDP",
+  tfp_index: "index",
+  patents: "applications",
+  rd_share_gdp: "percent of GDP",
+};

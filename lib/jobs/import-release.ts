@@ -56,7 +56,11 @@ export interface PreparedRelease {
  * Parse and map all payloads of a release. Throws ImportError listing every problem (collect mode)
  * when any payload has one; pure apart from reading the payload streams.
  */
-export async function prepareRelease(def: SourceDefinition, payloads: readonly ReleasePayload[], opts: { nonNegativeConcepts?: boolean } = {}): Promise<PreparedRelease> {
+export async function prepareRelease(
+  def: SourceDefinition,
+  payloads: readonly ReleasePayload[],
+  opts: { nonNegativeConcepts?: boolean; skipUnknownEconomies?: boolean } = {},
+): Promise<PreparedRelease> {
   const problems: ImportProblem[] = [];
   const observations: MappedObservation[] = [];
   const notes: string[] = [];
@@ -87,8 +91,12 @@ export async function prepareRelease(def: SourceDefinition, payloads: readonly R
       const d = new Date(stamp);
       if (!Number.isNaN(d.getTime()) && (!releasedAt || d > releasedAt)) releasedAt = d;
     }
-    const mapped = mapObservations(def, parsed.observations, p.query);
+    const mapped = mapObservations(def, parsed.observations, p.query, { skipUnknownEconomies: opts.skipUnknownEconomies });
     counts.unmatched += mapped.unmatched;
+    const skippedCodes = Object.entries(mapped.skippedEconomies);
+    if (skippedCodes.length) {
+      notes.push(`${p.name}: left out ${skippedCodes.reduce((n, [, c]) => n + c, 0)} observations of codes without an ISO 3166-1 alpha-3 equivalent (${skippedCodes.map(([c, n]) => `${c} ${n}`).join(", ")})`);
+    }
     for (const i of mapped.issues) problems.push({ payload: p.name, code: i.code, message: i.message });
     if (opts.nonNegativeConcepts !== false) {
       for (const o of mapped.observations) {
@@ -122,11 +130,13 @@ export interface ImportReleaseInput {
   isDemo?: boolean;
   releasedAt?: Date | null;
   fetchedAt?: Date;
+  /** Leave out codes without an ISO alpha-3 equivalent (publisher aggregates such as "EU28"), noting them. */
+  skipUnknownEconomies?: boolean;
 }
 
 /** Parse, map, validate and commit one release. Nothing is written unless all of it is clean. */
 export async function importRelease(store: Store, input: ImportReleaseInput): Promise<CommitResult & { prepared: PreparedRelease }> {
-  const prepared = await prepareRelease(input.def, input.payloads);
+  const prepared = await prepareRelease(input.def, input.payloads, { skipUnknownEconomies: input.skipUnknownEconomies });
   const result = await commitRelease(store, {
     source: input.def.name,
     label: input.label,

@@ -7,21 +7,35 @@ import cron, { type ScheduledTask } from "node-cron";
 import type { Store } from "../store/db";
 import { fetchSource } from "./fetch-source";
 import { runJob, type JobDefinition } from "./runner";
+import { refitAll } from "./refit";
+import { getModelInputs, inputSources } from "../store/panel";
 
 const holder = globalThis as { __ideafrontScheduler?: { tasks: ScheduledTask[] } };
 
-/** The fetch job of one source. */
-export function fetchJob(source: { name: string; schedule: string; timezone: string }, demoPassword?: string): JobDefinition {
+/**
+ * The fetch job of one source: fetch, store a new vintage when the release changed, then refit the
+ * active specs when the source feeds the model.
+ */
+export function fetchJob(source: { name: string; schedule: string; timezone: string }, opts: { demoPassword?: string; refit?: boolean } = {}): JobDefinition {
   return {
     name: `fetch:${source.name}`,
     schedule: source.schedule,
     timezone: source.timezone,
     async run(ctx) {
-      await ctx.progress(0, 1, `fetching ${source.name}`);
-      const r = await fetchSource(ctx.store, source.name, { now: ctx.tick, demoPassword });
-      await ctx.progress(1, 1, r.status);
+      await ctx.progress(0, 2, `fetching ${source.name}`);
+      const r = await fetchSource(ctx.store, source.name, { now: ctx.tick, demoPassword: opts.demoPassword });
+      let fits = 0;
+      if (r.status === "new-vintage" && opts.refit !== false) {
+        const inputs = await getModelInputs(ctx.store);
+        if (inputs && inputSources(inputs).includes(source.name)) {
+          await ctx.progress(1, 2, "refitting the active specs");
+          const outcomes = await refitAll(ctx.store, { jobRunId: ctx.runId });
+          fits = outcomes.filter((o) => o.status === "fitted").length;
+        }
+      }
+      await ctx.progress(2, 2, r.status);
       return {
-        counts: { newVintages: r.status === "new-vintage" ? 1 : 0, added: r.counts.added, revised: r.counts.revised, removed: r.counts.removed },
+        counts: { newVintages: r.status === "new-vintage" ? 1 : 0, added: r.counts.added, revised: r.counts.revised, removed: r.counts.removed, fitSets: fits },
         details: { status: r.status, vintage: r.vintage ?? null },
       };
     },
@@ -35,7 +49,7 @@ export async function startScheduler(store: Store, opts: { instance: string; dem
   const tasks: ScheduledTask[] = [];
   const jobs: string[] = [];
   for (const s of sources) {
-    const job = fetchJob(s, opts.demoPassword);
+    const job = fetchJob(s, { demoPassword: opts.demoPassword });
     const task = cron.schedule(
       job.schedule,
       async (ctx) => {
