@@ -147,6 +147,10 @@ export async function runFit(opts: FitCommandOptions): Promise<void> {
   if (spec.form === "capital-augmented" && !hasCapital) {
     throw new UsageError(`${opts.panel}, row 1: missing column "capital", needed by the capital-augmented form of spec ${spec.name}.`);
   }
+  const draws = opts.draws ?? spec.bootstrap.draws;
+  if (spec.form === "levels-nls" && draws > 0) {
+    progress(`levels-nls refits the nonlinear model for each of the ${draws} bootstrap draws: this can take minutes for a panel (use --draws to reduce).`);
+  }
   const fitStarted = performance.now();
   let lastReport = fitStarted;
   const results = estimateKpf(panel, spec, {

@@ -405,7 +405,7 @@ export function buildKpfSample(series: KpfEconomySeries, spec: KpfSpec): KpfSamp
       const r = index.at(series.researchers, inputYear);
       let complete = r !== null;
       const changes: number[] = [];
-      for (let j = -p; j <= p && complete; j++) {
+      for (let j = -p; p > 0 && j <= p && complete; j++) {
         const r1 = index.at(series.researchers, inputYear + j);
         const r0 = index.at(series.researchers, inputYear + j - 1);
         if (r1 === null || r0 === null) complete = false;
