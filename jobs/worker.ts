@@ -9,6 +9,8 @@ import { startScheduler, stopScheduler } from "../lib/jobs/scheduler";
 export async function runWorker(): Promise<void> {
   const cfg = cliConfig();
   const store = await openCliStore();
+  const { applyConfigFile } = await import("../lib/store/config-file");
+  for (const line of await applyConfigFile(store)) console.log(`configuration file: ${line}`);
   const { jobs } = await startScheduler(store, { instance: cfg.instance, demoPassword: cfg.demoPassword });
   console.log(`Worker ${cfg.instance} running ${jobs.length} scheduled job(s) on the ${store.kind} store. Ctrl+C stops it.`);
   await new Promise<void>((resolve) => {

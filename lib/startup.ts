@@ -16,13 +16,15 @@ async function start(): Promise<void> {
   try {
     const cfg = appConfig();
     const store = await getStore();
+    const { applyConfigFile } = await import("./store/config-file");
+    for (const line of await applyConfigFile(store)) console.log(`[config] ${line}`);
     if (cfg.demo) {
       const { ensureDemoWorkspace } = await import("./jobs/demo");
       await ensureDemoWorkspace(store, { password: cfg.demoPassword, onProgress: (l) => console.log(`[demo] ${l}`) });
     }
     if (cfg.scheduler) {
       const { startScheduler } = await import("./jobs/scheduler");
-      await startScheduler(store, { instance: cfg.instance });
+      await startScheduler(store, { instance: cfg.instance, demoPassword: cfg.demoPassword });
     }
   } catch (err) {
     const e = err as Error;

@@ -10,7 +10,8 @@ import { estimateKpf, kpfInputKey, type KpfEconomyResult } from "../estimation/k
 import type { KpfEconomySeries } from "../estimation/kpf-sample";
 import type { KpfSpec } from "../estimation/kpf-spec";
 import type { Store } from "../store/db";
-import { ensureBuiltinSpecs, fitsOfSet, latestFitSet, listSpecs, saveFitSet, type StoredSpec } from "../store/fits";
+import { ensureBuiltinSpecs, fitsOfSet, getAlertSettings, latestFitSet, listSpecs, saveFitSet, type StoredSpec } from "../store/fits";
+import { compareFits, type FitChangeRow } from "./changes";
 import { assemblePanel, getModelInputs, inputSources, resolveAsOf, type AsOf, type ModelInputs } from "../store/panel";
 import { APP_VERSION } from "../version";
 
@@ -46,7 +47,7 @@ export async function refitAll(
   const specs = (await listSpecs(store, { activeOnly: !opts.specNames })).filter((s) => !opts.specNames || opts.specNames.includes(s.name));
   const out: RefitOutcome[] = [];
   for (const s of specs) {
-    out.push(await refitSpec(store, s, panel, asOf, { derivation, skipped, jobRunId: opts.jobRunId ?? null }));
+    out.push(await refitSpec(store, s, panel, asOf, { derivation, skipped, jobRunId: opts.jobRunId ?? null, inputs }));
     opts.onProgress?.(`${s.name}: ${out.at(-1)!.status} (${out.at(-1)!.economiesRefitted} refitted, ${out.at(-1)!.economiesCarried} carried)`);
   }
   return out;
@@ -57,7 +58,7 @@ async function refitSpec(
   s: StoredSpec,
   panel: readonly KpfEconomySeries[],
   asOf: AsOf,
-  ctx: { derivation: string; skipped: { economy: string; reason: string }[]; jobRunId: number | null },
+  ctx: { derivation: string; skipped: { economy: string; reason: string }[]; jobRunId: number | null; inputs: ModelInputs },
 ): Promise<RefitOutcome> {
   const spec = s.spec;
   if (!panel.length) return { spec: s.name, status: "no-data", fitSetId: null, economiesRefitted: 0, economiesCarried: 0 };
@@ -96,7 +97,23 @@ async function refitSpec(
     economies: panel.length,
     ...(pooled ? { pooled: { gamma: pooled.gamma, theta: pooled.theta, seGamma: pooled.seGamma, seTheta: pooled.seTheta, pThetaGe1: pooled.pThetaGe1 } } : {}),
   };
-  const fitSetId = await saveFitSet(store, { specId: s.id, asOf, dataHash, codeVersion: APP_VERSION, results, economyHashes: hashes, summary, jobRunId: ctx.jobRunId });
+  let changes: FitChangeRow[] = [];
+  if (previous) {
+    const oldPanel = (await assemblePanel(store, ctx.inputs, previous.asOf)).panel;
+    changes = compareFits(spec, oldPanel, panel, before, results, (await getAlertSettings(store)).gStarThreshold);
+  }
+  const fitSetId = await saveFitSet(store, {
+    specId: s.id,
+    asOf,
+    dataHash,
+    codeVersion: APP_VERSION,
+    results,
+    economyHashes: hashes,
+    summary,
+    jobRunId: ctx.jobRunId,
+    changes,
+    previousFitSetId: previous?.id ?? null,
+  });
   return { spec: s.name, status: "fitted", fitSetId, economiesRefitted: results.length - carried, economiesCarried: carried };
 }
 

@@ -53,12 +53,32 @@ export function oneSentence(err: unknown): string {
  */
 export async function runJob(store: Store, job: JobDefinition, opts: { tick: Date; trigger: JobContext["trigger"]; instance: string }): Promise<RunResult> {
   await markAbandonedRuns(store);
-  const claimed = await store.sql.query<{ id: number }>(
-    `INSERT INTO job_run (job, tick, trigger, status, instance, started_at, heartbeat_at)
-     VALUES ($1, $2, $3, 'running', $4, now(), now())
-     ON CONFLICT (job, tick) DO NOTHING RETURNING id`,
-    [job.name, opts.tick, opts.trigger, opts.instance],
-  );
+  // Claim the tick, unless a run of the same job is still going (a run never overlaps itself).
+  // The transaction-scoped advisory lock serialises claims of one job across instances.
+  const claimed = await store.transaction(async (tx) => {
+    await tx.query(`SELECT pg_advisory_xact_lock(hashtext($1))`, [`ideafront:job:${job.name}`]);
+    const busy = await tx.query<{ id: number }>(
+      `SELECT id FROM job_run WHERE job = $1 AND status = 'running' AND COALESCE(heartbeat_at, started_at) >= $2 LIMIT 1`,
+      [job.name, new Date(Date.now() - STALE_AFTER_MS)],
+    );
+    if (busy.rows.length) {
+      // Recorded, so the log says why this tick did no work.
+      await tx.query(
+        `INSERT INTO job_run (job, tick, trigger, status, instance, started_at, finished_at, error)
+         VALUES ($1, $2, $3, 'skipped', $4, now(), now(), $5) ON CONFLICT (job, tick) DO NOTHING`,
+        [job.name, opts.tick, opts.trigger, opts.instance, `Skipped: run ${busy.rows[0]!.id} of this job was still in progress.`],
+      );
+      return { rows: [] as { id: number }[], busy: true };
+    }
+    const r = await tx.query<{ id: number }>(
+      `INSERT INTO job_run (job, tick, trigger, status, instance, started_at, heartbeat_at)
+       VALUES ($1, $2, $3, 'running', $4, now(), now())
+       ON CONFLICT (job, tick) DO NOTHING RETURNING id`,
+      [job.name, opts.tick, opts.trigger, opts.instance],
+    );
+    return { rows: r.rows, busy: false };
+  });
+  if (claimed.busy) return { status: "skipped", runId: null, error: "a run of this job is still in progress" };
   const runId = claimed.rows[0]?.id;
   if (runId === undefined) return { status: "skipped", runId: null };
   const ctx: JobContext = {

@@ -1,7 +1,9 @@
 /**
  * The scheduler: one node-cron task per enabled source ("fetch:<source>", on the source's own
  * schedule and time zone). Each tick is claimed through runJob, so with several app or worker
- * instances on one database each scheduled run happens once.
+ * instances on one database each scheduled run happens once. Every minute the tasks are
+ * reconciled with the sources table, so schedule changes made in the UI (by any instance) apply
+ * without a restart.
  */
 import cron, { type ScheduledTask } from "node-cron";
 import type { Store } from "../store/db";
@@ -10,7 +12,12 @@ import { runJob, type JobDefinition } from "./runner";
 import { refitAll } from "./refit";
 import { getModelInputs, inputSources } from "../store/panel";
 
-const holder = globalThis as { __ideafrontScheduler?: { tasks: ScheduledTask[] } };
+interface SchedulerState {
+  tasks: Map<string, { task: ScheduledTask; key: string }>;
+  timer: NodeJS.Timeout;
+  store: Store;
+}
+const holder = globalThis as { __ideafrontScheduler?: SchedulerState };
 
 /**
  * The fetch job of one source: fetch, store a new vintage when the release changed, then refit the
@@ -42,28 +49,63 @@ export function fetchJob(source: { name: string; schedule: string; timezone: str
   };
 }
 
-/** Start the scheduled tasks (once per process). */
-export async function startScheduler(store: Store, opts: { instance: string; demoPassword?: string }): Promise<{ jobs: string[] }> {
-  if (holder.__ideafrontScheduler) return { jobs: [] };
-  const sources = await store.prisma.source.findMany({ where: { enabled: true } });
-  const tasks: ScheduledTask[] = [];
-  const jobs: string[] = [];
-  for (const s of sources) {
+/** The manual refit job: every active spec on the latest vintages. */
+export const refitJob: JobDefinition = {
+  name: "refit",
+  schedule: "",
+  timezone: "UTC",
+  async run(ctx) {
+    await ctx.progress(0, 1, "refitting the active specs");
+    const outcomes = await refitAll(ctx.store, { jobRunId: ctx.runId });
+    await ctx.progress(1, 1, "done");
+    return {
+      counts: { fitSets: outcomes.filter((o) => o.status === "fitted").length, economiesRefitted: outcomes.reduce((n, o) => n + o.economiesRefitted, 0) },
+      details: { outcomes },
+    };
+  },
+};
+
+/** The scheduled minute of a tick: the same on every instance. */
+export function tickOf(date: Date): Date {
+  return new Date(Math.floor(date.getTime() / 60_000) * 60_000);
+}
+
+async function reconcile(state: SchedulerState, opts: { instance: string; demoPassword?: string }): Promise<void> {
+  const sources = await state.store.prisma.source.findMany({ where: { enabled: true } });
+  const wanted = new Map(sources.map((s) => [`fetch:${s.name}`, s]));
+  for (const [name, t] of state.tasks) {
+    const s = wanted.get(name);
+    if (!s || t.key !== `${s.schedule}|${s.timezone}`) {
+      await t.task.destroy();
+      state.tasks.delete(name);
+    }
+  }
+  for (const [name, s] of wanted) {
+    if (state.tasks.has(name)) continue;
     const job = fetchJob(s, { demoPassword: opts.demoPassword });
     const task = cron.schedule(
       job.schedule,
       async (ctx) => {
-        // The tick is the scheduled minute, the same on every instance.
-        const tick = new Date(Math.floor((ctx?.date ?? new Date()).getTime() / 60_000) * 60_000);
-        const r = await runJob(store, job, { tick, trigger: "schedule", instance: opts.instance });
+        const r = await runJob(state.store, job, { tick: tickOf(ctx?.date ?? new Date()), trigger: "schedule", instance: opts.instance });
         if (r.status === "failed") console.error(`[jobs] ${job.name} failed: ${r.error}`);
       },
       { name: job.name, timezone: job.timezone, noOverlap: true },
     );
-    tasks.push(task);
-    jobs.push(job.name);
+    state.tasks.set(name, { task, key: `${s.schedule}|${s.timezone}` });
   }
-  holder.__ideafrontScheduler = { tasks };
+}
+
+/** Start the scheduled tasks (once per process). */
+export async function startScheduler(store: Store, opts: { instance: string; demoPassword?: string; reconcileMs?: number }): Promise<{ jobs: string[] }> {
+  if (holder.__ideafrontScheduler) return { jobs: [...holder.__ideafrontScheduler.tasks.keys()] };
+  const state: SchedulerState = { tasks: new Map(), store, timer: undefined as unknown as NodeJS.Timeout };
+  holder.__ideafrontScheduler = state;
+  await reconcile(state, opts);
+  state.timer = setInterval(() => {
+    reconcile(state, opts).catch((err) => console.error(`[jobs] could not reload the schedules: ${(err as Error).message}`));
+  }, opts.reconcileMs ?? 60_000);
+  state.timer.unref();
+  const jobs = [...state.tasks.keys()];
   console.log(`[jobs] scheduler started with ${jobs.length} job(s): ${jobs.join(", ") || "none"}`);
   return { jobs };
 }
@@ -71,5 +113,7 @@ export async function startScheduler(store: Store, opts: { instance: string; dem
 export async function stopScheduler(): Promise<void> {
   const s = holder.__ideafrontScheduler;
   holder.__ideafrontScheduler = undefined;
-  for (const t of s?.tasks ?? []) await t.destroy();
+  if (!s) return;
+  clearInterval(s.timer);
+  for (const t of s.tasks.values()) await t.task.destroy();
 }

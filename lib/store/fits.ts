@@ -6,6 +6,7 @@ import { NAMED_KPF_SPECS, type KpfSpec } from "../estimation/kpf-spec";
 import type { KpfEconomyResult } from "../estimation/kpf-estimate";
 import type { Store } from "./db";
 import type { AsOf } from "./panel";
+import type { FitChangeRow } from "../jobs/changes";
 
 /** Built-in specs: the team default (headline) and the single-economy reference (diagnostic). */
 export async function ensureBuiltinSpecs(store: Store): Promise<void> {
@@ -61,6 +62,9 @@ export interface FitSetInput {
   summary?: Record<string, unknown>;
   warnings?: readonly string[];
   jobRunId?: number | null;
+  /** What moved since `previousFitSetId`, written in the same transaction. */
+  changes?: readonly FitChangeRow[];
+  previousFitSetId?: number | null;
 }
 
 const finite = (x: number | null | undefined): number | null => (x === null || x === undefined || !Number.isFinite(x) ? null : x);
@@ -99,6 +103,32 @@ export async function saveFitSet(store: Store, input: FitSetInput): Promise<numb
           rs.map((r) => JSON.stringify(r.details, (_k, v) => (typeof v === "number" && !Number.isFinite(v) ? String(v) : v))),
           rs.map((r) => JSON.stringify(r.warnings)),
           rs.map((r) => input.economyHashes[r.economy] ?? input.dataHash),
+        ],
+      );
+    }
+    for (const c of input.changes ?? []) {
+      await tx.query(
+        `INSERT INTO fit_change (spec_id, economy_code, from_fit_set_id, to_fit_set_id, g_star_from, g_star_to, g_star_old_sample, revision_effect, new_data_effect,
+                                 regime_from, regime_to, interval_from, interval_to, new_years, revised_values, flagged, reasons)
+         VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12::jsonb, $13::jsonb, $14::jsonb, $15, $16, $17::jsonb)`,
+        [
+          input.specId,
+          c.economy,
+          input.previousFitSetId ?? null,
+          id,
+          finite(c.gStarFrom),
+          finite(c.gStarTo),
+          finite(c.gStarOldSample),
+          finite(c.revisionEffect),
+          finite(c.newDataEffect),
+          c.regimeFrom,
+          c.regimeTo,
+          JSON.stringify(c.intervalFrom),
+          JSON.stringify(c.intervalTo),
+          JSON.stringify(c.newYears),
+          c.revisedValues,
+          c.flagged,
+          JSON.stringify(c.reasons),
         ],
       );
     }
@@ -180,5 +210,76 @@ export async function fitsOfSet(store: Store, fitSetId: number, opts: { economy?
     warnings: (f.warnings as string[]) ?? [],
     details: (f.details as Record<string, unknown>) ?? null,
     dataHash: f.dataHash,
+  }));
+}
+
+export interface AlertSettings {
+  /** Move of g* (growth-rate units; 0.001 = 0.1 percentage points) that puts an economy in the alert feed. */
+  gStarThreshold: number;
+}
+export const DEFAULT_ALERTS: AlertSettings = { gStarThreshold: 0.001 };
+
+export async function getAlertSettings(store: Store): Promise<AlertSettings> {
+  const row = await store.prisma.setting.findUnique({ where: { key: "alerts" } });
+  const v = row?.value as Partial<AlertSettings> | undefined;
+  return { gStarThreshold: typeof v?.gStarThreshold === "number" && v.gStarThreshold >= 0 ? v.gStarThreshold : DEFAULT_ALERTS.gStarThreshold };
+}
+
+export async function setAlertSettings(store: Store, a: AlertSettings): Promise<void> {
+  await store.prisma.setting.upsert({ where: { key: "alerts" }, create: { key: "alerts", value: a as object }, update: { value: a as object } });
+}
+
+export interface ChangeFeedItem {
+  id: number;
+  spec: string;
+  economy: string;
+  economyName: string;
+  isDemo: boolean;
+  fromLabel: string | null;
+  toLabel: string;
+  gStarFrom: number | null;
+  gStarTo: number | null;
+  revisionEffect: number | null;
+  newDataEffect: number | null;
+  regimeFrom: string | null;
+  regimeTo: string | null;
+  newYears: number[];
+  revisedValues: number;
+  flagged: boolean;
+  reasons: string[];
+  createdAt: Date;
+}
+
+/** The change feed, newest first. */
+export async function changeFeed(store: Store, opts: { spec?: string; economy?: string; flaggedOnly?: boolean; limit?: number } = {}): Promise<ChangeFeedItem[]> {
+  const rows = await store.prisma.fitChange.findMany({
+    where: {
+      ...(opts.spec ? { spec: { name: opts.spec } } : {}),
+      ...(opts.economy ? { economyCode: opts.economy } : {}),
+      ...(opts.flaggedOnly ? { flagged: true } : {}),
+    },
+    include: { spec: { select: { name: true } }, economy: { select: { name: true, isDemo: true } }, from: { select: { asOfLabel: true } }, to: { select: { asOfLabel: true } } },
+    orderBy: [{ toFitSetId: "desc" }, { economyCode: "asc" }],
+    take: Math.min(opts.limit ?? 100, 1000),
+  });
+  return rows.map((r) => ({
+    id: r.id,
+    spec: r.spec.name,
+    economy: r.economyCode,
+    economyName: r.economy.name,
+    isDemo: r.economy.isDemo,
+    fromLabel: r.from?.asOfLabel ?? null,
+    toLabel: r.to.asOfLabel,
+    gStarFrom: r.gStarFrom,
+    gStarTo: r.gStarTo,
+    revisionEffect: r.revisionEffect,
+    newDataEffect: r.newDataEffect,
+    regimeFrom: r.regimeFrom,
+    regimeTo: r.regimeTo,
+    newYears: (r.newYears as number[]) ?? [],
+    revisedValues: r.revisedValues,
+    flagged: r.flagged,
+    reasons: (r.reasons as string[]) ?? [],
+    createdAt: r.createdAt,
   }));
 }

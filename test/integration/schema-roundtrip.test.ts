@@ -82,6 +82,14 @@ const cases: Record<Prisma.ModelName, Case> = {
     });
     expect(await s.prisma.fit.findUniqueOrThrow({ where: { id: row.id } })).toEqual(row);
   },
+  FitChange: async (s) => {
+    const set = await s.prisma.fitSet.findFirstOrThrow();
+    const spec = await s.prisma.modelSpec.findUniqueOrThrow({ where: { name: "rt-spec" } });
+    const row = await s.prisma.fitChange.create({
+      data: { specId: spec.id, economyCode: "XAA", fromFitSetId: null, toFitSetId: set.id, gStarFrom: 0.01, gStarTo: 0.012, gStarOldSample: 0.011, revisionEffect: 0.001, newDataEffect: 0.001, regimeFrom: "converging", regimeTo: "converging", intervalFrom: [0.005, 0.015], intervalTo: [0.006, null], newYears: [2025], revisedValues: 3, flagged: true, reasons: ["g* moved up"] },
+    });
+    expect(await s.prisma.fitChange.findUniqueOrThrow({ where: { id: row.id } })).toEqual(row);
+  },
   User: async (s) => {
     const row = await s.prisma.user.create({ data: { email: "a@example.org", name: "A", passwordHash: "$argon2id$...", role: "EDITOR" } });
     expect(await s.prisma.user.findUniqueOrThrow({ where: { email: "a@example.org" } })).toEqual(row);
@@ -120,7 +128,7 @@ for (const target of storeTargets()) {
     });
 
     // Order matters: later cases use rows of earlier ones.
-    for (const model of ["Economy", "Source", "Series", "Vintage", "Observation", "ModelSpec", "JobRun", "FitSet", "Fit", "User", "Session", "Setting"] as const) {
+    for (const model of ["Economy", "Source", "Series", "Vintage", "Observation", "ModelSpec", "JobRun", "FitSet", "Fit", "FitChange", "User", "Session", "Setting"] as const) {
       it(`round-trips ${model}`, async () => {
         await cases[model](store);
       });

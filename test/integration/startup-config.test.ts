@@ -21,7 +21,7 @@ beforeAll(() => {
 function start(env: Record<string, string>) {
   const r = spawnSync(process.execPath, [path.join(root, "scripts", "start.mjs")], {
     cwd: root,
-    env: { PATH: process.env.PATH ?? "", HOME: os.tmpdir(), IDEAFRONT_DEMO: "off", ...env } as NodeJS.ProcessEnv,
+    env: { PATH: process.env.PATH ?? "", HOME: os.tmpdir(), IDEAFRONT_DEMO: "off", ...env } as unknown as NodeJS.ProcessEnv,
     encoding: "utf8",
     timeout: 60_000,
   });

@@ -39,6 +39,8 @@ export function register(program: Command): void {
         const { ensureDemoWorkspace } = await import("../../jobs/demo");
         await ensureDemoWorkspace(store, { password: cfg.demoPassword, onProgress: (l) => progress(`  ${l}`) });
       }
+      const { applyConfigFile } = await import("../../store/config-file");
+      for (const line of await applyConfigFile(store)) progress(`  configuration file: ${line}`);
       await store.close();
     });
   registerWorker(program);
