@@ -22,7 +22,7 @@ export { NAMED_KPF_SPECS, REFERENCE_PANEL_SPEC, REFERENCE_SPEC, TEAM_DEFAULT_SPE
 
 const range = z.tuple([z.number(), z.number()]);
 
-const smoothing = z.discriminatedUnion("kind", [
+const smoothing = z.union([
   z.strictObject({ kind: z.literal("annual") }),
   z.strictObject({ kind: z.literal("average"), years: z.number().int(), overlapping: z.boolean().optional() }),
   z.strictObject({ kind: z.literal("trend"), method: z.literal("rolling-log-linear").optional(), years: z.number().int().optional() }),
