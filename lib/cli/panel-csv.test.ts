@@ -68,6 +68,10 @@ describe("readPanelCsv", () => {
   it("counts rows as a spreadsheet does across quoted line breaks", () => {
     const e = problem(() => readPanelCsv(`${header},note\nXAA,2000,10,1,100,"two\nlines"\nXAA,2001,-1,1,100,x\n`, "p.csv"));
     expect(e.row).toBe(4); // header row 1, a two-line record rows 2-3, the bad record starts on line 4
+    const blank = problem(() => readPanelCsv(`${header}\nXAA,2000,10,1,100\n\nXAA,2001,-1,1,100\n`, "p.csv"));
+    expect(blank.row).toBe(4); // a blank line 3 is skipped but still counted
+    const plain = problem(() => readPanelCsv(`${header}\nXAA,2000,10,1,100\nXAA,2001,-1,1,100\n`, "p.csv"));
+    expect(plain.row).toBe(3); // no quotes, no blank lines: one record per line
   });
 });
 

@@ -153,6 +153,23 @@ function num(x: number): string {
 }
 
 /**
+ * Work arrays for the per-draw loops, reused from call to call (grown when needed) so that a run
+ * over many economies allocates them once. They never leave a call: results copy what they need.
+ */
+const scratch = { size: 0, theta: new Float64Array(0), gamma: new Float64Array(0), n: new Float64Array(0), g: new Float64Array(0) };
+
+function workBuffers(draws: number): typeof scratch {
+  if (scratch.size < draws) {
+    scratch.size = draws;
+    scratch.theta = new Float64Array(draws);
+    scratch.gamma = new Float64Array(draws);
+    scratch.n = new Float64Array(draws);
+    scratch.g = new Float64Array(draws);
+  }
+  return scratch;
+}
+
+/**
  * Rearranges values[0..count) so that values[k] is the k-th smallest, smaller ones before it and
  * larger ones after it (Hoare's selection with median-of-three pivots; O(count) on average, no
  * allocation). NaN must not be present.
@@ -335,8 +352,9 @@ export function impliedGrowth(fit: KpfFit, cov: KpfCovariance, options: ImpliedG
   // Bootstrap draws of the regime parameter, gamma, kappa (shared by every economy of the fit).
   const draws = bootstrap?.draws ?? 0;
   const S = bootstrap?.structural;
-  const thetaDraws = new Float64Array(draws);
-  const gammaDraws = new Float64Array(draws);
+  const work = workBuffers(draws);
+  const thetaDraws = work.theta;
+  const gammaDraws = work.gamma;
   let validTheta = 0;
   let validGamma = 0;
   let thetaGe1 = 0;
@@ -391,8 +409,8 @@ export function impliedGrowth(fit: KpfFit, cov: KpfCovariance, options: ImpliedG
   }
 
   const economies: EconomyImpliedGrowth[] = [];
-  const nDraws = new Float64Array(draws);
-  const gDraws = new Float64Array(draws);
+  const nDraws = work.n;
+  const gDraws = work.g;
   for (let e = 0; e < fit.economies.length; e++) {
     const series = fit.data[e];
     const economy = series.economy;
