@@ -21,6 +21,8 @@ export default async function DashboardLayout({ children }: { children: ReactNod
           <Link href="/">Overview</Link>
           <Link href="/economies">Economies</Link>
           <Link href="/vintages">Vintages</Link>
+          <Link href="/runs">Runs</Link>
+          <Link href="/sources">Sources</Link>
         </nav>
         <div className="who">
           <span>

@@ -51,7 +51,11 @@ export function oneSentence(err: unknown): string {
  * Claim (job, tick) and run it. Returns "skipped" when another instance already claimed that tick.
  * Errors are recorded, never thrown.
  */
-export async function runJob(store: Store, job: JobDefinition, opts: { tick: Date; trigger: JobContext["trigger"]; instance: string }): Promise<RunResult> {
+export async function runJob(
+  store: Store,
+  job: JobDefinition,
+  opts: { tick: Date; trigger: JobContext["trigger"]; instance: string; onClaimed?: (runId: number | null) => void },
+): Promise<RunResult> {
   await markAbandonedRuns(store);
   // Claim the tick, unless a run of the same job is still going (a run never overlaps itself).
   // The transaction-scoped advisory lock serialises claims of one job across instances.
@@ -78,8 +82,12 @@ export async function runJob(store: Store, job: JobDefinition, opts: { tick: Dat
     );
     return { rows: r.rows, busy: false };
   });
-  if (claimed.busy) return { status: "skipped", runId: null, error: "a run of this job is still in progress" };
+  if (claimed.busy) {
+    opts.onClaimed?.(null);
+    return { status: "skipped", runId: null, error: "a run of this job is still in progress" };
+  }
   const runId = claimed.rows[0]?.id;
+  opts.onClaimed?.(runId ?? null);
   if (runId === undefined) return { status: "skipped", runId: null };
   const ctx: JobContext = {
     store,

@@ -65,9 +65,9 @@ export const refitJob: JobDefinition = {
   },
 };
 
-/** The scheduled minute of a tick: the same on every instance. */
+/** The scheduled second of a tick: the same on every instance (schedules may have a seconds field). */
 export function tickOf(date: Date): Date {
-  return new Date(Math.floor(date.getTime() / 60_000) * 60_000);
+  return new Date(Math.floor(date.getTime() / 1000) * 1000);
 }
 
 async function reconcile(state: SchedulerState, opts: { instance: string; demoPassword?: string }): Promise<void> {

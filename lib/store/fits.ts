@@ -283,3 +283,50 @@ export async function changeFeed(store: Store, opts: { spec?: string; economy?: 
     createdAt: r.createdAt,
   }));
 }
+
+export interface HistoryPoint {
+  fitSetId: number;
+  asOfLabel: string;
+  /** The vintage label of the first input source (the demo has one source). */
+  vintage: string;
+  createdAt: Date;
+  gStar: number | null;
+  gStarLo: number | null;
+  gStarHi: number | null;
+  theta: number | null;
+  seTheta: number | null;
+  gamma: number | null;
+  n: number | null;
+  nobs: number;
+  regime: string | null;
+  warnings: string[];
+}
+
+/** One economy's estimate under one spec across all its fit sets (the parameter history), oldest first. */
+export async function economyHistory(store: Store, economy: string, specId: number): Promise<HistoryPoint[]> {
+  const rows = await store.prisma.fit.findMany({
+    where: { economyCode: economy, fitSet: { specId } },
+    include: { fitSet: { select: { asOf: true, asOfLabel: true, createdAt: true } } },
+    orderBy: { fitSetId: "asc" },
+  });
+  return rows.map((f) => {
+    const asOf = f.fitSet.asOf as AsOf;
+    const first = Object.values(asOf)[0];
+    return {
+      fitSetId: f.fitSetId,
+      asOfLabel: f.fitSet.asOfLabel,
+      vintage: first?.label ?? f.fitSet.asOfLabel,
+      createdAt: f.fitSet.createdAt,
+      gStar: f.gStar,
+      gStarLo: f.gStarLo,
+      gStarHi: f.gStarHi,
+      theta: f.theta,
+      seTheta: f.seTheta,
+      gamma: f.gamma,
+      n: f.n,
+      nobs: f.nobs,
+      regime: f.regime,
+      warnings: (f.warnings as string[]) ?? [],
+    };
+  });
+}

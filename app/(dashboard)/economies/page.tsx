@@ -1,3 +1,4 @@
+import Link from "next/link";
 import { getStore } from "@/lib/store";
 import { economyCoverage } from "@/lib/store/workspace";
 
@@ -31,7 +32,7 @@ export default async function EconomiesPage() {
                 <code>{e.code}</code>
               </td>
               <td>
-                {e.name} {e.isDemo && <span className="tag warn">invented</span>}
+                <Link href={`/economies/${e.code}`}>{e.name}</Link> {e.isDemo && <span className="tag warn">invented</span>}
               </td>
               <td>
                 {e.concepts.map((c) => (
