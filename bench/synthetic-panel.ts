@@ -25,7 +25,11 @@ export interface SyntheticPanelCsvOptions {
   seed: number;
 }
 
-/** The CSV text of a simulated panel, and the truth behind it. */
+/**
+ * The CSV text of a SIMULATED panel (kpf-simulate.ts), with cells blanked at random, and the truth
+ * behind it. Example: syntheticPanelCsv({ economies: 2, years: 3, ... }).csv starts
+ * "economy,year,researchers,tfp,population". Reference: DOMAIN.md section 2 (the model simulated).
+ */
 export function syntheticPanelCsv(options: SyntheticPanelCsvOptions): { csv: string; truth: ReturnType<typeof simulateKpfPanel>["truth"] } {
   const rng: Rng = createRng(options.seed);
   const sim = simulateKpfPanel(

@@ -172,6 +172,7 @@ export interface PanelCsv {
  * once. Economies are returned sorted by code, years increasing.
  * Throws InputFileError (a UsageError: exit code 2) naming file, row and column.
  * Example: readPanelCsv("economy,year,researchers,tfp,population\nXAA,2000,10,1,100\nXAA,2001,11,1.01,101\n", "p.csv").panel[0].years -> [2000, 2001]
+ * Reference: RFC 4180 (CSV), parsed by csv-parse 6; issue 3 (panel columns).
  */
 export function readPanelCsv(text: string, file: string): PanelCsv {
   const { header, records } = readRecords(text, file);
@@ -234,7 +235,9 @@ export interface AccountsCsv {
  * must be positive and the labour share in (0, 1]; empty or NA cells are missing. An economy-year
  * may appear once; each economy needs at least 2 years.
  * Throws InputFileError naming file, row and column.
- * Example: a PWT 10.01 extract with isocode, year, rgdpna, emp, avh, hc, rkna, labsh reads as is.
+ * Example: a PWT 10.01 extract with isocode, year, rgdpna, emp, avh, hc, rkna, labsh reads as is;
+ *   readAccountsCsv(pwtText, "pwt.csv").economies.get("USA")![0].output is rgdpna of the first year.
+ * Reference: Feenstra, Inklaar & Timmer (2015), AER 105(10) (PWT variable names); RFC 4180.
  */
 export function readAccountsCsv(text: string, file: string): AccountsCsv {
   const { header, records } = readRecords(text, file);

@@ -53,7 +53,12 @@ export const FIT_COLUMNS = [
   "seed",
 ] as const;
 
-/** A number for the CSV: full precision, empty when not available, Inf/-Inf when unbounded. */
+/**
+ * A number for the output CSV: full precision (shortest round-trip form), empty when not
+ * available (null, NaN), Inf/-Inf when unbounded (as R writes them).
+ * Example: csvNumber(0.1) -> "0.1"; csvNumber(Infinity) -> "Inf"; csvNumber(null) -> ""
+ * Reference: ECMAScript Number.prototype.toString (shortest round-trip digits).
+ */
 export function csvNumber(x: number | null | undefined): string {
   if (x === null || x === undefined || Number.isNaN(x)) return "";
   if (x === Infinity) return "Inf";
@@ -107,7 +112,12 @@ function resultRow(r: KpfEconomyResult): string[] {
   ];
 }
 
-/** The results as CSV text (header + one row per economy). */
+/**
+ * The per-economy results as CSV text: the FIT_COLUMNS header, then one row per economy;
+ * warnings joined by " | ".
+ * Example: fitResultsCsv(estimateKpf(panel, REFERENCE_SPEC)).split("\n")[0] starts "economy,nobs,gamma,theta".
+ * Reference: issue 3 (output columns); RFC 4180 via csv-stringify 6.
+ */
 export function fitResultsCsv(results: readonly KpfEconomyResult[]): string {
   return stringify([[...FIT_COLUMNS], ...results.map(resultRow)], { eof: true });
 }
@@ -133,7 +143,14 @@ async function resolveSpec(name: string): Promise<KpfSpec> {
   }
 }
 
-/** Runs `fit` with parsed options; throws UsageError (exit 2) for input problems. */
+/**
+ * The `fit` command: read and validate the panel, resolve the spec (name or JSON file), estimate
+ * every economy (estimateKpf), write the CSV and optional JSON details, summary on stderr.
+ * Throws UsageError (exit code 2) for unreadable files, an unknown or invalid spec, or bad input
+ * (InputFileError naming file, row and column).
+ * Example: runFit({ panel: "p.csv", spec: "reference", out: "fit.csv" }) writes fit.csv.
+ * Reference: issue 3 (the fit command).
+ */
 export async function runFit(opts: FitCommandOptions): Promise<void> {
   const started = performance.now();
   const spec = await resolveSpec(opts.spec);

@@ -10,7 +10,14 @@ import { readAccountsCsv } from "./panel-csv";
 import { csvNumber } from "./run-fit";
 import { UsageError, progress } from "./shared";
 
-/** Growth accounting of every economy of an accounts file, as CSV rows economy,year,tfp,tfp_growth (plus notes). */
+/**
+ * Tornqvist growth accounting of every economy of an accounts file as CSV text with columns
+ * economy,year,tfp,tfp_growth (tfp an index, 1 in each economy's first year with all inputs;
+ * tfp_growth the log change), plus notes (index restarts after gaps).
+ * Throws InputFileError naming file, row and column for bad input.
+ * Example: two complete years of "XAA" give rows XAA,2000,1, and XAA,2001,1.0100...,0.0100...
+ * Reference: Feenstra, Inklaar & Timmer (2015), AER 105(10); tornqvistTfpGrowth of lib/estimation.
+ */
 export function tfpCsv(text: string, file: string): { csv: string; notes: string[]; economies: number } {
   const { economies } = readAccountsCsv(text, file);
   const rows: string[][] = [["economy", "year", "tfp", "tfp_growth"]];
@@ -23,7 +30,12 @@ export function tfpCsv(text: string, file: string): { csv: string; notes: string
   return { csv: stringify(rows, { eof: true }), notes, economies: economies.size };
 }
 
-/** Runs `tfp` with parsed options; throws UsageError (exit 2) for input problems. */
+/**
+ * The `tfp` command: read the accounts, run the growth accounting, write the CSV, notes on stderr.
+ * Throws UsageError (exit code 2) for an unreadable file or bad input.
+ * Example: runTfp({ accounts: "pwt.csv", out: "tfp.csv" }) writes tfp.csv.
+ * Reference: issue 3 (the tfp command).
+ */
 export async function runTfp(opts: TfpCommandOptions): Promise<void> {
   let text: string;
   try {

@@ -317,7 +317,7 @@ function researchGrowthFor(fit: KpfFit, series: KpfEconomySeries, options: Impli
  * Example: for gamma = 1, theta = -2.1 (Bloom et al. 2020 from memory) and n = 0.043:
  *   gStar = 0.043/3.1 = 0.013870967741935483.
  * Reference: Jones (1995), JPE 103(4); DOMAIN.md sections 2 and 4 (delta method gradient);
- * Efron & Tibshirani (1993) (percentile intervals); Hyndman & Fan (1996) (type 7 quantiles).
+ * B. Efron (1981), "Nonparametric standard errors and confidence intervals", Canadian J. Statistics 9(2), citation from memory (percentile intervals); Hyndman & Fan (1996) (type 7 quantiles).
  */
 export function impliedGrowth(fit: KpfFit, cov: KpfCovariance, options: ImpliedGrowthOptions = {}): ImpliedGrowth {
   if (!fit.estimated) throw new RangeError("impliedGrowth: the fit has no estimate");

@@ -83,6 +83,14 @@ describe("estimateKpf, panel scope", () => {
     expect(estimated[0].warnings).toContain("only 6 clusters: cluster-robust standard errors are unreliable with fewer than about 10 clusters.");
   });
 
+  it("falls back to HAC, in words, when only one economy is left to cluster on", () => {
+    const results = estimateKpf([short, sim.panel[0]], deriveKpfSpec(REFERENCE_PANEL_SPEC, { bootstrap: { draws: 49 } }));
+    const r = results.find((x) => x.economy === "XAA")!;
+    expect(r.regime).not.toBe("no-estimate");
+    expect(r.details.covariance).toMatch(/^Newey-West HAC/);
+    expect(r.warnings).toContain("Only one economy (XAA) has enough observations for the pooled fit: standard errors are Newey-West HAC instead of clustered by economy.");
+  });
+
   it("supports the three panel bootstrap schemes", () => {
     for (const panelScheme of ["economies", "within-economy", "common-years"] as const) {
       const spec = kpfSpec({ scope: "panel", covariance: { kind: "cluster" }, restrictions: { gamma: 1 }, bootstrap: { draws: 99, panelScheme } });

@@ -223,7 +223,12 @@ export function estimateKpf(panel: KpfPanel, spec: KpfSpec, options: EstimateKpf
     options.onProgress?.(1, 1, "panel");
     return Object.freeze(results);
   }
-  const cov = kpfCovariance(fit);
+  // Clustering by economy needs two economies; with one left, Newey-West HAC instead, said in words.
+  const clusterImpossible = spec.covariance.kind === "cluster" && fit.economies.length < 2;
+  const cov = clusterImpossible ? kpfCovariance(fit, { kind: "HAC", lags: "auto", adjust: true }) : kpfCovariance(fit);
+  if (clusterImpossible) {
+    general.push(`Only one economy (${fit.economies[0]}) has enough observations for the pooled fit: standard errors are Newey-West HAC instead of clustered by economy.`);
+  }
   const implied = impliedGrowth(fit, cov, { draws, rng: createRng(seed), horizon: options.horizon });
   const index = new Map(fit.economies.map((e, i) => [e, i]));
   for (const s of fit.samples) {

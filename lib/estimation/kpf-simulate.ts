@@ -42,7 +42,12 @@ export interface SimulatedKpfPanel {
   readonly truth: readonly { readonly economy: string; readonly n: number; readonly gStar: number; readonly logB: number }[];
 }
 
-/** Fictional economy code number i: XAA, XAB, ..., XAZ, XBA, ... (user-assigned ISO range). */
+/**
+ * Fictional economy code number i (0-based): XAA, XAB, ..., XAZ, XBA, ... in the user-assigned
+ * ISO 3166-1 range X.., so that simulated economies can never be mistaken for real ones.
+ * Throws RangeError outside 0..675. Example: simulatedEconomyCode(27) -> "XBB"
+ * Reference: ISO 3166-1 (codes XAA-XZZ are user-assigned).
+ */
 export function simulatedEconomyCode(i: number): string {
   if (!(Number.isInteger(i) && i >= 0 && i < 26 * 26)) throw new RangeError(`simulatedEconomyCode: i must be an integer in [0, 676), got ${i}`);
   return `X${String.fromCharCode(65 + Math.floor(i / 26))}${String.fromCharCode(65 + (i % 26))}`;

@@ -21,6 +21,12 @@ export interface FitCommandOptions {
   details?: string;
 }
 
+/**
+ * Registers `fit` on the program: options, help text, exit code 2 for usage errors; the
+ * implementation (run-fit.ts) is imported only when the command runs.
+ * Example: register(new Command()) adds the "fit" command.
+ * Reference: commander 14 documentation (requiredOption, exitOverride).
+ */
 export function register(program: Command): void {
   program
     .command("fit")

@@ -7,6 +7,12 @@ export interface TfpCommandOptions {
   out: string;
 }
 
+/**
+ * Registers `tfp` on the program: options, help text, exit code 2 for usage errors; the
+ * implementation (run-tfp.ts) is imported only when the command runs.
+ * Example: register(new Command()) adds the "tfp" command.
+ * Reference: commander 14 documentation (requiredOption, exitOverride).
+ */
 export function register(program: Command): void {
   program
     .command("tfp")
