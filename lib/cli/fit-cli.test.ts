@@ -77,7 +77,7 @@ describe("fit on a simulated panel", () => {
   it("writes the documented columns, warnings as sentences, and JSON details", async () => {
     const out = path.join(work, "team.csv");
     const details = path.join(work, "team.json");
-    await fitInProcess(["--panel", path.join(fixtures, "simulated-12x30.csv"), "--draws", "99", "--seed", "5", "--out", out, "--details", details]);
+    await fitInProcess(["--panel", path.join(fixtures, "simulated-12x30.csv"), "--draws", "99", "--seed", "5", "--out", out, "--details", details, "--horizon", "20"]);
     const text = readFileSync(out, "utf8");
     expect(text.split("\n")[0]).toBe(FIT_COLUMNS.join(","));
     const rows = readCsv(out);
@@ -91,6 +91,11 @@ describe("fit on a simulated panel", () => {
     const json = JSON.parse(readFileSync(details, "utf8"));
     expect(json).toHaveLength(12);
     expect(json[0].details.bootstrap).toMatchObject({ draws: 99, scheme: "economies", seed: 5 });
+    const transition = json[0].details.path;
+    expect(transition.times).toHaveLength(21);
+    expect(transition.maxDifference).toBeLessThan(1e-9); // closed-form logistic vs Dormand-Prince, issue 3: 1e-9
+    expect(transition.levelFan.bands).toHaveLength(5);
+    expect(transition.level[0]).toBeGreaterThan(0);
   });
 
   it("accepts a JSON spec file with a base, and names the field of a bad one", async () => {

@@ -173,6 +173,7 @@ export async function runFit(opts: FitCommandOptions): Promise<void> {
   const results = estimateKpf(panel, spec, {
     draws: opts.draws,
     seed: opts.seed,
+    horizon: opts.details ? (opts.horizon ?? 0) : 0,
     onProgress: (done, total) => {
       const now = performance.now();
       if (now - lastReport > 1000 && done < total) {

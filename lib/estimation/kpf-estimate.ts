@@ -11,7 +11,7 @@
  * (compare kpfInputKey).
  */
 import type { Regime } from "./dynamics";
-import { type ImpliedGrowth, type IntervalEstimate, type ResearchGrowthUsed, impliedGrowth } from "./implied-growth";
+import { type ImpliedGrowth, type IntervalEstimate, type ResearchGrowthUsed, type TransitionPath, impliedGrowth } from "./implied-growth";
 import { kpfCovariance } from "./kpf-covariance";
 import { type KpfFit, fitKpf } from "./kpf-fit";
 import type { KpfEconomySeries, KpfPanel } from "./kpf-sample";
@@ -65,6 +65,11 @@ export interface KpfResultDetails {
   readonly discreteSteadyState: number | null;
   readonly g0: number | null;
   readonly blowUpTime: number | null;
+  /**
+   * With options.horizon > 0: the transition path of g from g0 (closed form and integrator), the
+   * TFP level projection and fan charts over the bootstrap draws; otherwise null.
+   */
+  readonly path: TransitionPath | null;
 }
 
 /** One economy's estimate, ready for storage and the command line. */
@@ -95,7 +100,7 @@ export interface EstimateKpfOptions {
   readonly draws?: number;
   /** Seed (default: the spec's). */
   readonly seed?: number;
-  /** Horizon of transition paths (default 0: none; the paths are then not in the results). */
+  /** Horizon in years of the transition paths and TFP projections in the details (default 0: none). */
   readonly horizon?: number;
   /** Called after each economy (economy scope) or once (panel). */
   readonly onProgress?: (done: number, total: number, economy: string) => void;
@@ -176,6 +181,7 @@ function noEstimate(economy: string, spec: KpfSpec, fit: KpfFit | null, nobs: nu
       discreteSteadyState: null,
       g0: null,
       blowUpTime: null,
+      path: null,
     }),
   });
 }
@@ -319,6 +325,7 @@ function economyResult(
       discreteSteadyState: g.discreteSteadyState,
       g0: g.g0.value,
       blowUpTime: g.blowUpTime,
+      path: g.path,
     }),
   });
 }

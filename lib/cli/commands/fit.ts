@@ -19,6 +19,7 @@ export interface FitCommandOptions {
   seed?: number;
   out: string;
   details?: string;
+  horizon?: number;
 }
 
 /**
@@ -37,6 +38,7 @@ export function register(program: Command): void {
     .option("--seed <s>", "bootstrap seed (overrides the spec)", integer)
     .requiredOption("--out <file>", "output CSV: one row per economy")
     .option("--details <file>", "also write every result with its details (intervals, sample years, methods) as JSON")
+    .option("--horizon <years>", "with --details: transition path of g from today's growth, TFP projection and fan charts over this many years", nonNegativeInteger)
     .addHelpText(
       "after",
       `
