@@ -10,7 +10,8 @@
  *   with replacement ("economies", the analogue of clustering by economy), moving blocks of years
  *   within each economy ("within-economy") or the same blocks of years for all economies
  *   ("common-years", via createPanelBlockBootstrap); work arrays preallocated, no allocation per draw;
- * - levels-nls: a Levenberg-Marquardt refit per draw started at the full-sample estimate (this
+ * * - levels-nls: a Levenberg-Marquardt refit per draw started at the full-sample estimate (at most
+ *   100 iterations, no geodesic acceleration; a refit that does not converge counts as failed; this
  *   path allocates per draw and is far slower; "economies" falls back to "within-economy").
  *
  * References: H. R. Kunsch (1989), Annals of Statistics 17(3); D. N. Politis and H. White (2004),
@@ -317,7 +318,7 @@ function bootstrapNls(fit: KpfFit, draws: number, rng: Rng, blockOption: number 
             },
           },
           start,
-          { maxIterations: 200 },
+          { maxIterations: 100, geodesicAcceleration: false },
         );
         ok = refit.converged;
         coefficients = refit.coefficients;

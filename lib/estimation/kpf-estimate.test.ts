@@ -44,6 +44,15 @@ describe("estimateKpf, economy scope", () => {
     expect(r.warnings[0]).toBe("XZZ: 4 usable observations, fewer than the minimum of 8: no estimate (0 non-positive growth, 0 missing inputs).");
   });
 
+  it("bootstraps levels-nls by refitting the nonlinear model per draw", () => {
+    const r = estimateKpf([sim.panel[0]], kpfSpec({ form: "levels-nls", bootstrap: { draws: 49 } }))[0];
+    expect(r.details.estimator).toBe("NLS (Levenberg-Marquardt)");
+    expect(r.details.bootstrap!.scheme).toBe("moving-blocks+nls-refit");
+    expect(r.details.bootstrap!.validDraws).toBeGreaterThanOrEqual(45);
+    expect(r.details.intervals.theta.lower).toBeLessThan(r.theta);
+    expect(r.details.intervals.theta.upper).toBeGreaterThan(r.theta);
+  });
+
   it("makes an economy's result independent of the other economies in the file (refit only what changed)", () => {
     const alone = estimateKpf([sim.panel[2]], spec)[0];
     expect(alone).toEqual(results[2]);
