@@ -77,11 +77,7 @@ function bootstrapEconomy(fit: KpfFit, draws: number, rng: Rng, blockOption: num
   const result = bootstrapOls(regression.design, regression.response, { draws, rng, blockLength });
   const k = result.columns;
   const structural = new Float64Array(draws * 4);
-  const one = new Float64Array(4);
-  for (let d = 0; d < draws; d++) {
-    structuralFromCoefficients(fit.layout, result.coefficients, d * k, one);
-    structural.set(one, d * 4);
-  }
+  for (let d = 0; d < draws; d++) structuralFromCoefficients(fit.layout, result.coefficients, d * k, structural, d * 4);
   return Object.freeze({
     draws,
     scheme: "moving-blocks",
@@ -126,7 +122,6 @@ function bootstrapPanelLinear(fit: KpfFit, draws: number, rng: Rng, blockOption:
   }
   const structural = new Float64Array(draws * 4);
   const coefficients = new Float64Array(k);
-  const one = new Float64Array(4);
   const normal = new Float64Array(p * p);
   const rhs = new Float64Array(p);
   let failed = 0;
@@ -136,8 +131,7 @@ function bootstrapPanelLinear(fit: KpfFit, draws: number, rng: Rng, blockOption:
 
   const finishDraw = (d: number): void => {
     if (p === 0) {
-      structuralFromCoefficients(fit.layout, coefficients, 0, one);
-      structural.set(one, d * 4);
+      structuralFromCoefficients(fit.layout, coefficients, 0, structural, d * 4);
       return;
     }
     if (!choleskyInPlace(normal, p, 1e-10)) {
@@ -147,8 +141,7 @@ function bootstrapPanelLinear(fit: KpfFit, draws: number, rng: Rng, blockOption:
     }
     choleskySolveInPlace(normal, p, rhs);
     for (let j = 0; j < p; j++) coefficients[slopeColumns[j]] = rhs[j];
-    structuralFromCoefficients(fit.layout, coefficients, 0, one);
-    structural.set(one, d * 4);
+    structuralFromCoefficients(fit.layout, coefficients, 0, structural, d * 4);
   };
 
   if (scheme === "economies") {
@@ -276,7 +269,6 @@ function bootstrapNls(fit: KpfFit, draws: number, rng: Rng, blockOption: number 
   }
   const indices = new Int32Array(capacity);
   const structural = new Float64Array(draws * 4);
-  const one = new Float64Array(4);
   let failed = 0;
   for (let d = 0; d < draws; d++) {
     const m = drawIndices(indices);
@@ -331,8 +323,7 @@ function bootstrapNls(fit: KpfFit, draws: number, rng: Rng, blockOption: number 
       structural.fill(Number.NaN, d * 4, d * 4 + 4);
       continue;
     }
-    structuralFromCoefficients(layout, coefficients, 0, one);
-    structural.set(one, d * 4);
+    structuralFromCoefficients(layout, coefficients, 0, structural, d * 4);
   }
   if (failed > 0) warnings.push(`${failed} of ${draws} bootstrap refits did not converge and were left out.`);
   return Object.freeze({ draws, scheme, blockLength, structural, failedDraws: failed, warnings: Object.freeze(warnings) });

@@ -13,7 +13,7 @@
 import type { Regime } from "./dynamics";
 import { type ImpliedGrowth, type IntervalEstimate, type ResearchGrowthUsed, type TransitionPath, impliedGrowth } from "./implied-growth";
 import { kpfCovariance } from "./kpf-covariance";
-import { type KpfFit, fitKpf } from "./kpf-fit";
+import { type KpfFit, fitValidatedKpf } from "./kpf-fit";
 import type { KpfEconomySeries, KpfPanel } from "./kpf-sample";
 import { validateKpfPanel } from "./kpf-sample";
 import { type KpfSpec, describeKpfSpec } from "./kpf-spec";
@@ -206,7 +206,7 @@ export function estimateKpf(panel: KpfPanel, spec: KpfSpec, options: EstimateKpf
   const results: KpfEconomyResult[] = [];
   if (spec.scope === "economy") {
     sorted.forEach((series, i) => {
-      const fit = fitKpf(series, spec);
+      const fit = fitValidatedKpf([series], spec);
       if (!fit.estimated) {
         results.push(noEstimate(series.economy, spec, fit, fit.samples[0].rows.length, [...fit.warnings, DIAGNOSTIC_WARNING]));
       } else {
@@ -218,7 +218,7 @@ export function estimateKpf(panel: KpfPanel, spec: KpfSpec, options: EstimateKpf
     });
     return Object.freeze(results);
   }
-  const fit = fitKpf(sorted, spec);
+  const fit = fitValidatedKpf(sorted, spec);
   const specific = new Map<string, string[]>();
   for (const s of fit.samples) specific.set(s.economy, [...s.warnings]);
   for (const x of fit.excluded) specific.get(x.economy)?.push(x.reason);

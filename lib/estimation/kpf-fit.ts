@@ -17,7 +17,7 @@
  * (cluster CR1 then matches sandwich::vcovCL(type = "HC1")).
  */
 import { type Matrix, createMatrix } from "./linalg";
-import { type KpfEconomySeries, type KpfPanel, type KpfSample, type KpfSampleRow, buildKpfSample, validateKpfPanel } from "./kpf-sample";
+import { type KpfEconomySeries, type KpfPanel, type KpfSample, type KpfSampleRow, buildValidatedSample, validateKpfPanel } from "./kpf-sample";
 import type { KpfSpec } from "./kpf-spec";
 import { nls, type NonlinearFit } from "./nls";
 import { type LinearFit, ols } from "./ols";
@@ -93,37 +93,43 @@ const STRUCTURAL = ["gamma", "theta", "beta", "kappa"] as const;
 
 /**
  * Structural parameters (gamma, theta, beta, kappa) from a coefficient vector stored at
- * coefficients[offset .. offset + k), written into out[0..4). Allocation-free (bootstrap loops).
+ * coefficients[offset .. offset + k), written into out[outOffset .. outOffset + 4). Allocation-free (bootstrap loops).
  * gamma = fixed or b_gamma; theta = fixed or offset + b_lnA; beta = b_lnK; kappa as in KpfParameters;
  * cointegration: kappa = b_lnR, theta = 1 - gamma/kappa when gamma is fixed, gamma = kappa (1 - theta)
  * when theta is fixed.
  * Example: with the log-linear layout {gamma: 1, theta: 2} and b = [-3, 0.5, -0.5]: [0.5, 0.5, NaN, 1].
  * Reference: the estimating equations in the module comment.
  */
-export function structuralFromCoefficients(layout: KpfCoefficientLayout, coefficients: ArrayLike<number>, offset: number, out: Float64Array): void {
+export function structuralFromCoefficients(
+  layout: KpfCoefficientLayout,
+  coefficients: ArrayLike<number>,
+  offset: number,
+  out: Float64Array,
+  outOffset = 0,
+): void {
   if (layout.form === "cointegration") {
     const kappa = coefficients[offset + layout.kappa];
-    out[3] = kappa;
-    out[2] = Number.NaN;
+    out[outOffset + 3] = kappa;
+    out[outOffset + 2] = Number.NaN;
     if (layout.gammaFixed !== null) {
-      out[0] = layout.gammaFixed;
-      out[1] = 1 - layout.gammaFixed / kappa;
+      out[outOffset] = layout.gammaFixed;
+      out[outOffset + 1] = 1 - layout.gammaFixed / kappa;
     } else if (layout.thetaFixed !== null) {
-      out[1] = layout.thetaFixed;
-      out[0] = kappa * (1 - layout.thetaFixed);
+      out[outOffset + 1] = layout.thetaFixed;
+      out[outOffset] = kappa * (1 - layout.thetaFixed);
     } else {
-      out[0] = Number.NaN;
-      out[1] = Number.NaN;
+      out[outOffset] = Number.NaN;
+      out[outOffset + 1] = Number.NaN;
     }
     return;
   }
   const gamma = layout.gamma >= 0 ? coefficients[offset + layout.gamma] : (layout.gammaFixed as number);
   const theta = layout.theta >= 0 ? layout.thetaOffset + coefficients[offset + layout.theta] : (layout.thetaFixed as number);
   const beta = layout.beta >= 0 ? coefficients[offset + layout.beta] : Number.NaN;
-  out[0] = gamma;
-  out[1] = theta;
-  out[2] = beta;
-  out[3] = layout.beta >= 0 ? (beta + gamma) / (1 - theta - beta) : gamma / (1 - theta);
+  out[outOffset] = gamma;
+  out[outOffset + 1] = theta;
+  out[outOffset + 2] = beta;
+  out[outOffset + 3] = layout.beta >= 0 ? (beta + gamma) / (1 - theta - beta) : gamma / (1 - theta);
 }
 
 function emptyParameters(economies: number): KpfParameters {
@@ -159,11 +165,21 @@ function formatNumber(x: number): string {
 export function fitKpf(data: KpfEconomySeries | KpfPanel, spec: KpfSpec): KpfFit {
   const panel: KpfPanel = Array.isArray(data) ? (data as KpfPanel) : [data as KpfEconomySeries];
   validateKpfPanel(panel);
+  return fitValidatedKpf(panel, spec);
+}
+
+/**
+ * Knowledge production function fit of a panel already checked by validateKpfPanel (as fitKpf,
+ * without a second validation pass; estimateKpf validates once).
+ * Throws as fitKpf except for invalid series. Example: fitValidatedKpf([series], spec) equals fitKpf(series, spec).
+ * Reference: as fitKpf.
+ */
+export function fitValidatedKpf(panel: KpfPanel, spec: KpfSpec): KpfFit {
   if (spec.scope === "economy" && panel.length !== 1) {
     throw new RangeError(`fitKpf: scope "economy" fits one economy at a time, got ${panel.length} (fit each, or use estimateKpf)`);
   }
   const warnings: string[] = [];
-  const samples = panel.map((series) => buildKpfSample(series, spec));
+  const samples = panel.map((series) => buildValidatedSample(series, spec));
   const order = samples.map((_, i) => i).sort((a, b) => (samples[a].economy < samples[b].economy ? -1 : samples[a].economy > samples[b].economy ? 1 : 0));
   const excluded: { economy: string; reason: string }[] = [];
   const included: number[] = [];

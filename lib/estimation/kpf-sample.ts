@@ -319,6 +319,17 @@ const NO_LEADS: readonly number[] = Object.freeze([]);
  */
 export function buildKpfSample(series: KpfEconomySeries, spec: KpfSpec): KpfSample {
   validateKpfSeries(series);
+  return buildValidatedSample(series, spec);
+}
+
+/**
+ * Estimation sample of a series already checked by validateKpfSeries (as buildKpfSample, without
+ * a second validation pass; for callers that validated a whole panel once).
+ * Throws RangeError for a capital-augmented spec without a capital series; an unchecked invalid
+ * series gives undefined results. Example: buildValidatedSample(series, spec) equals buildKpfSample(series, spec).
+ * Reference: as buildKpfSample.
+ */
+export function buildValidatedSample(series: KpfEconomySeries, spec: KpfSpec): KpfSample {
   const index = new YearIndex(series.years);
   const code = series.economy;
   const rows: KpfSampleRow[] = [];
