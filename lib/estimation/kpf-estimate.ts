@@ -131,6 +131,13 @@ export function kpfInputKey(series: KpfEconomySeries, spec: KpfSpec): string {
   return JSON.stringify([spec, series.economy, series.years, series.researchers, series.tfp, series.population ?? null, series.capital ?? null]);
 }
 
+/** describeKpfSpec of the last spec seen (one string per estimate, not per economy). */
+let lastDescription: { spec: KpfSpec | null; text: string } = { spec: null, text: "" };
+function described(spec: KpfSpec): string {
+  if (lastDescription.spec !== spec) lastDescription = { spec, text: describeKpfSpec(spec) };
+  return lastDescription.text;
+}
+
 const DIAGNOSTIC_WARNING =
   "Single-economy fit, a diagnostic: estimates of gamma and theta from one economy are imprecise and sensitive to the sample, the smoothing and the TFP measure; use a pooled spec for headline numbers.";
 
@@ -155,7 +162,7 @@ function noEstimate(economy: string, spec: KpfSpec, fit: KpfFit | null, nobs: nu
     warnings: Object.freeze(warnings),
     details: Object.freeze({
       spec: spec.name,
-      specDescription: describeKpfSpec(spec),
+      specDescription: described(spec),
       form: spec.form,
       scope: spec.scope,
       role: spec.scope === "panel" ? ("pooled" as const) : ("diagnostic" as const),
@@ -286,7 +293,7 @@ function economyResult(
     warnings: Object.freeze([...new Set(warnings)]),
     details: Object.freeze({
       spec: spec.name,
-      specDescription: describeKpfSpec(spec),
+      specDescription: described(spec),
       form: spec.form,
       scope: spec.scope,
       role: fit.role,
