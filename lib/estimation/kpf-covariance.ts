@@ -126,6 +126,13 @@ export function kpfCovariance(fit: KpfFit, choice: KpfCovarianceChoice = fit.spe
   const se = new Float64Array(p);
   for (let a = 0; a < p; a++) se[a] = Math.sqrt(out.data[a + a * p]);
   const warnings = coefficients.warnings.map((w) => `${w.message}.`);
+  const s = fit.spec.smoothing;
+  const overlapping = (s.kind === "average" && s.overlapping) || s.kind === "trend";
+  if (overlapping && (choice.kind === "classical" || choice.kind === "HC")) {
+    warnings.push(
+      `Smoothed growth (${s.kind === "average" ? `${s.years}-year moving averages` : s.method === "hp" ? "HP trend" : `${s.years}-year rolling trends`}) shares years between observations, so their errors are serially correlated: ${choice.kind === "HC" ? choice.type : "classical"} standard errors ignore this and are too small; use HAC or clustering by economy.`,
+    );
+  }
   return Object.freeze({
     choice,
     coefficients,

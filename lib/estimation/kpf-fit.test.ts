@@ -181,6 +181,17 @@ describe("the structural covariance", () => {
   });
 });
 
+describe("covariance choices that ignore overlapping smoothing", () => {
+  it("are flagged in words", () => {
+    const fit = fitKpf(sim.panel[0], kpfSpec({ smoothing: { kind: "average", years: 5, overlapping: true } }));
+    expect(kpfCovariance(fit, { kind: "HC", type: "HC1" }).warnings).toContain(
+      "Smoothed growth (5-year moving averages) shares years between observations, so their errors are serially correlated: HC1 standard errors ignore this and are too small; use HAC or clustering by economy.",
+    );
+    expect(kpfCovariance(fit).warnings).toEqual([]); // HAC with lag raised to at least k - 1
+    expect(kpfCovariance(fit).coefficients.lags).toBe(4);
+  });
+});
+
 describe("too few observations and misuse", () => {
   const short: KpfEconomySeries = {
     economy: "XSH",
