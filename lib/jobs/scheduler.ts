@@ -9,7 +9,7 @@ import cron, { type ScheduledTask } from "node-cron";
 import type { Store } from "../store/db";
 import { fetchSource } from "./fetch-source";
 import { runJob, type JobDefinition } from "./runner";
-import { refitAll } from "./refit";
+import { refitAll, type RefitOutcome } from "./refit";
 import { getModelInputs, inputSources } from "../store/panel";
 
 interface SchedulerState {
@@ -21,7 +21,10 @@ const holder = globalThis as { __ideafrontScheduler?: SchedulerState };
 
 /**
  * The fetch job of one source: fetch, store a new vintage when the release changed, then refit the
- * active specs when the source feeds the model.
+ * active specs when the source feeds the model. The refit also runs when the release did not
+ * change: a run that stopped after committing its vintage (crash, database restart) left the fit
+ * sets behind, and the next run completes that work; when the fit sets are current, refitAll
+ * stores nothing.
  */
 export function fetchJob(source: { name: string; schedule: string; timezone: string }, opts: { demoPassword?: string; refit?: boolean } = {}): JobDefinition {
   return {
@@ -31,19 +34,26 @@ export function fetchJob(source: { name: string; schedule: string; timezone: str
     async run(ctx) {
       await ctx.progress(0, 2, `fetching ${source.name}`);
       const r = await fetchSource(ctx.store, source.name, { now: ctx.tick, demoPassword: opts.demoPassword });
-      let fits = 0;
-      if (r.status === "new-vintage" && opts.refit !== false) {
+      let outcomes: RefitOutcome[] = [];
+      if (opts.refit !== false) {
         const inputs = await getModelInputs(ctx.store);
         if (inputs && inputSources(inputs).includes(source.name)) {
-          await ctx.progress(1, 2, "refitting the active specs");
-          const outcomes = await refitAll(ctx.store, { jobRunId: ctx.runId });
-          fits = outcomes.filter((o) => o.status === "fitted").length;
+          await ctx.progress(1, 2, r.status === "new-vintage" ? "refitting the active specs" : "checking that the fit sets are current");
+          outcomes = await refitAll(ctx.store, { jobRunId: ctx.runId });
         }
       }
+      const fitted = outcomes.filter((o) => o.status === "fitted");
       await ctx.progress(2, 2, r.status);
       return {
-        counts: { newVintages: r.status === "new-vintage" ? 1 : 0, added: r.counts.added, revised: r.counts.revised, removed: r.counts.removed, fitSets: fits },
-        details: { status: r.status, vintage: r.vintage ?? null },
+        counts: {
+          newVintages: r.status === "new-vintage" ? 1 : 0,
+          added: r.counts.added,
+          revised: r.counts.revised,
+          removed: r.counts.removed,
+          fitSets: fitted.length,
+          economiesRefitted: fitted.reduce((n, o) => n + o.economiesRefitted, 0),
+        },
+        details: { status: r.status, vintage: r.vintage ?? null, refit: outcomes },
       };
     },
   };
