@@ -98,3 +98,55 @@ export {
   studentTQuantile,
   studentTTwoSidedPValue,
 } from "./distributions";
+
+// ---------------------------------------------------------------------------------------------
+// Knowledge production function: specs, samples, fits, covariance, bootstrap, long-run
+// implications, per-economy results, scenarios and simulation (kpf-*.ts, implied-growth.ts,
+// scenarios.ts). Block added by the model-layer work of issue 3.
+// ---------------------------------------------------------------------------------------------
+export type {
+  KpfCovarianceChoice,
+  KpfForm,
+  KpfPanelBootstrapScheme,
+  KpfResearchGrowthChoice,
+  KpfScope,
+  KpfSmoothing,
+  KpfSpec,
+  KpfSpecInput,
+} from "./kpf-spec";
+export {
+  DEFAULT_HP_LAMBDA,
+  NAMED_KPF_SPECS,
+  REFERENCE_PANEL_SPEC,
+  REFERENCE_SPEC,
+  TEAM_DEFAULT_SPEC,
+  deriveKpfSpec,
+  describeKpfSpec,
+  kpfSpec,
+  namedKpfSpec,
+} from "./kpf-spec";
+export type { KpfEconomySeries, KpfPanel, KpfSample, KpfSampleRow } from "./kpf-sample";
+export { buildKpfSample, hodrickPrescottTrend, validateKpfPanel, validateKpfSeries } from "./kpf-sample";
+export type { KpfCoefficientLayout, KpfFit, KpfParameters } from "./kpf-fit";
+export { fitKpf, structuralFromCoefficients } from "./kpf-fit";
+export type { KpfCovariance } from "./kpf-covariance";
+export { kpfAutoHacLags, kpfCovariance } from "./kpf-covariance";
+export type { KpfBootstrap, KpfBootstrapOptions } from "./kpf-bootstrap";
+export { bootstrapKpf } from "./kpf-bootstrap";
+export type {
+  EconomyImpliedGrowth,
+  ImpliedGrowth,
+  ImpliedGrowthOptions,
+  IntervalEstimate,
+  PerEconomy,
+  ResearchGrowthUsed,
+  TransitionPath,
+} from "./implied-growth";
+export { impliedGrowth } from "./implied-growth";
+export type { EstimateKpfOptions, KpfEconomyResult, KpfResultDetails } from "./kpf-estimate";
+export { economySeed, estimateKpf, kpfInputKey } from "./kpf-estimate";
+export type { GrowthScenario, GrowthScenarioInput } from "./scenarios";
+export { growthScenario, scenarioForEconomy } from "./scenarios";
+export type { SimulateKpfOptions, SimulatedKpfPanel } from "./kpf-simulate";
+export { simulateKpfPanel, simulatedEconomyCode } from "./kpf-simulate";
+// ---------------------------------------------------------------------------------------------
