@@ -260,6 +260,17 @@ export async function waitingInserts(adminUrl: string, db: string, table: string
   }
 }
 
+/** Whether the server session with backend pid `pid` still exists. */
+export async function sessionAlive(adminUrl: string, pid: number): Promise<boolean> {
+  const c = new pg.Client({ connectionString: adminUrl });
+  await c.connect();
+  try {
+    return (await c.query(`SELECT 1 FROM pg_stat_activity WHERE pid = $1`, [pid])).rows.length > 0;
+  } finally {
+    await c.end();
+  }
+}
+
 export function databaseName(url: string): string {
   return decodeURIComponent(new URL(url).pathname.slice(1));
 }
