@@ -7,7 +7,7 @@ import { cliConfig, openCliStore } from "../lib/cli/shared";
 import { startScheduler, stopScheduler } from "../lib/jobs/scheduler";
 
 export async function runWorker(): Promise<void> {
-  const cfg = cliConfig();
+  const cfg = await cliConfig();
   const store = await openCliStore();
   const { applyConfigFile } = await import("../lib/store/config-file");
   for (const line of await applyConfigFile(store)) console.log(`configuration file: ${line}`);

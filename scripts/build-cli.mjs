@@ -2,14 +2,20 @@
 // fast (no TypeScript transpiling at each start). Dependencies stay in node_modules (external).
 // Runs at `npm install` (postinstall) and by `npm run build:cli`.
 import { build } from "esbuild";
+import fs from "node:fs";
 import { createRequire } from "node:module";
 import path from "node:path";
 
 const root = path.resolve(import.meta.dirname, "..");
 const started = Date.now();
+fs.rmSync(path.join(root, "dist"), { recursive: true, force: true });
 await build({
-  entryPoints: [path.join(root, "lib", "cli", "main.ts")],
-  outfile: path.join(root, "dist", "cli.mjs"),
+  entryPoints: { cli: path.join(root, "lib", "cli", "main.ts") },
+  outdir: path.join(root, "dist"),
+  outExtension: { ".js": ".mjs" },
+  chunkNames: "chunks/[name]-[hash]",
+  // Each command's implementation becomes its own chunk, loaded only when that command runs.
+  splitting: true,
   bundle: true,
   platform: "node",
   target: "node20",

@@ -161,7 +161,8 @@ export async function runFetch(o: { source?: string; refit: boolean }): Promise<
     if (!rows.length) console.log("No enabled sources: enable one with `ideafront sources enable <name>`.");
     let failed = 0;
     for (const s of rows) {
-      const r = await runJob(store, fetchJob(s, { demoPassword: cliConfig().demoPassword, refit: o.refit }), { tick: new Date(), trigger: "manual", instance: cliConfig().instance });
+      const cfg = await cliConfig();
+      const r = await runJob(store, fetchJob(s, { demoPassword: cfg.demoPassword, refit: o.refit }), { tick: new Date(), trigger: "manual", instance: cfg.instance });
       if (r.status === "failed") {
         failed++;
         console.log(`${s.name}: failed: ${r.error}`);

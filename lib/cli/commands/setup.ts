@@ -20,7 +20,7 @@ export function register(program: Command): void {
     .action(async () => {
       const { ensureDemoWorkspace } = await import("../../jobs/demo");
       const store = await openCliStore();
-      const r = await ensureDemoWorkspace(store, { password: cliConfig().demoPassword, onProgress: progress });
+      const r = await ensureDemoWorkspace(store, { password: (await cliConfig()).demoPassword, onProgress: progress });
       console.log(r.imported.length ? `Loaded ${r.imported.length} demo releases.` : "The demo workspace is already complete.");
       await store.close();
     });
@@ -31,7 +31,7 @@ export function register(program: Command): void {
     .option("--port <port>", "check that this port is free")
     .option("--host <host>", "host the server will listen on", "0.0.0.0")
     .action(async (opts: { port?: string; host: string }) => {
-      const cfg = cliConfig();
+      const cfg = await cliConfig();
       if (opts.port) await assertPortFree(Number(opts.port), opts.host);
       progress(cfg.storeKind === "embedded" ? `Opening the embedded store in ${cfg.dataDir} ...` : "Connecting to the PostgreSQL server in DATABASE_URL ...");
       const store = await openCliStore();
