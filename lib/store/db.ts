@@ -83,6 +83,7 @@ async function openPostgres(url: string, timeoutSeconds: number): Promise<Store>
     sql: asConn(pool),
     async transaction(fn) {
       const client = await pool.connect();
+      const broken = watchCheckedOut(client);
       try {
         await client.query("BEGIN");
         const result = await fn(asConn(client));
@@ -92,21 +93,40 @@ async function openPostgres(url: string, timeoutSeconds: number): Promise<Store>
         await client.query("ROLLBACK").catch(() => {});
         throw err;
       } finally {
-        client.release();
+        client.release(broken());
       }
     },
     async withConnection(fn) {
       const client = await pool.connect();
+      const broken = watchCheckedOut(client);
       try {
         return await fn(asConn(client));
       } finally {
-        client.release();
+        client.release(broken());
       }
     },
     async close() {
       await prisma.$disconnect().catch(() => {});
       await pool.end().catch(() => {});
     },
+  };
+}
+
+/**
+ * A checked-out client whose server goes away (restart, crash) emits "error" besides failing the
+ * query in progress; the pool listens only to idle clients, and an unheard "error" ends the
+ * process. Listen while the client is out; the returned function stops listening and gives the
+ * error, if any, to pass to release() so the pool drops the broken client.
+ */
+function watchCheckedOut(client: pg.PoolClient): () => Error | undefined {
+  let failure: Error | undefined;
+  const onError = (err: Error) => {
+    failure = err;
+  };
+  client.on("error", onError);
+  return () => {
+    client.off("error", onError);
+    return failure;
   };
 }
 
