@@ -275,14 +275,21 @@ export function databaseName(url: string): string {
   return decodeURIComponent(new URL(url).pathname.slice(1));
 }
 
-/** Restart the local PostgreSQL 15 cluster (fast shutdown) and wait until it answers again. */
-export async function restartPostgres(adminUrl: string): Promise<void> {
+/**
+ * Restart the local PostgreSQL cluster: stop it (fast shutdown: sessions are terminated, open
+ * transactions rolled back), keep it down for `downMs`, start it and wait until it answers. The
+ * server is started again whatever happens: other people's tests use it.
+ */
+export async function restartPostgres(adminUrl: string, opts: { downMs?: number } = {}): Promise<void> {
   const version = fs.readdirSync("/etc/postgresql")[0] ?? "15";
-  const r = spawnSync("pg_ctlcluster", ["--skip-systemctl-redirect", version, "main", "restart", "-m", "fast"], { encoding: "utf8", timeout: 60_000 });
-  if (r.status !== 0) {
-    // Never leave the server down.
-    spawnSync("pg_ctlcluster", ["--skip-systemctl-redirect", version, "main", "start"], { encoding: "utf8", timeout: 60_000 });
-    throw new Error(`pg_ctlcluster restart failed: ${(r.stderr || r.stdout).trim()}`);
+  const ctl = (...args: string[]) => spawnSync("pg_ctlcluster", ["--skip-systemctl-redirect", version, "main", ...args], { encoding: "utf8", timeout: 60_000 });
+  try {
+    const stop = ctl("stop", "-m", "fast");
+    if (stop.status !== 0) throw new Error(`pg_ctlcluster stop failed: ${(stop.stderr || stop.stdout).trim()}`);
+    await new Promise((r) => setTimeout(r, opts.downMs ?? 0));
+  } finally {
+    const start = ctl("start");
+    if (start.status !== 0 && !/already running/i.test(start.stderr + start.stdout)) throw new Error(`pg_ctlcluster start failed: ${(start.stderr || start.stdout).trim()}`);
   }
   await waitFor("PostgreSQL to accept connections again", async () => {
     const c = new pg.Client({ connectionString: adminUrl });
