@@ -16,6 +16,8 @@ interface SchedulerState {
   tasks: Map<string, { task: ScheduledTask; key: string }>;
   timer: NodeJS.Timeout;
   store: Store;
+  /** Runs started by this scheduler and not yet finished (stopScheduler waits for them). */
+  running: Set<Promise<unknown>>;
 }
 const holder = globalThis as { __ideafrontScheduler?: SchedulerState };
 
@@ -96,8 +98,14 @@ async function reconcile(state: SchedulerState, opts: { instance: string; demoPa
     const task = cron.schedule(
       job.schedule,
       async (ctx) => {
-        const r = await runJob(state.store, job, { tick: tickOf(ctx?.date ?? new Date()), trigger: "schedule", instance: opts.instance });
-        if (r.status === "failed") console.error(`[jobs] ${job.name} failed: ${r.error}`);
+        const run = runJob(state.store, job, { tick: tickOf(ctx?.date ?? new Date()), trigger: "schedule", instance: opts.instance });
+        state.running.add(run);
+        try {
+          const r = await run;
+          if (r.status === "failed") console.error(`[jobs] ${job.name} failed: ${r.error}`);
+        } finally {
+          state.running.delete(run);
+        }
       },
       { name: job.name, timezone: job.timezone, noOverlap: true },
     );
@@ -108,7 +116,7 @@ async function reconcile(state: SchedulerState, opts: { instance: string; demoPa
 /** Start the scheduled tasks (once per process). */
 export async function startScheduler(store: Store, opts: { instance: string; demoPassword?: string; reconcileMs?: number }): Promise<{ jobs: string[] }> {
   if (holder.__ideafrontScheduler) return { jobs: [...holder.__ideafrontScheduler.tasks.keys()] };
-  const state: SchedulerState = { tasks: new Map(), store, timer: undefined as unknown as NodeJS.Timeout };
+  const state: SchedulerState = { tasks: new Map(), store, timer: undefined as unknown as NodeJS.Timeout, running: new Set() };
   holder.__ideafrontScheduler = state;
   await reconcile(state, opts);
   state.timer = setInterval(() => {
@@ -120,10 +128,25 @@ export async function startScheduler(store: Store, opts: { instance: string; dem
   return { jobs };
 }
 
-export async function stopScheduler(): Promise<void> {
+/**
+ * Stop the scheduled tasks, then wait (at most `waitMs`, default 60 s) for runs in progress to
+ * finish and be logged, so a worker stopped with SIGTERM does not leave a run "running" for the
+ * next instance to mark abandoned and redo. A run still going after the wait is left to that.
+ */
+export async function stopScheduler(opts: { waitMs?: number } = {}): Promise<void> {
   const s = holder.__ideafrontScheduler;
   holder.__ideafrontScheduler = undefined;
   if (!s) return;
   clearInterval(s.timer);
   for (const t of s.tasks.values()) await t.task.destroy();
+  if (!s.running.size) return;
+  console.log(`[jobs] waiting for ${s.running.size} running job${s.running.size === 1 ? "" : "s"} to finish`);
+  let timer: NodeJS.Timeout | undefined;
+  await Promise.race([
+    Promise.allSettled([...s.running]),
+    new Promise<void>((resolve) => {
+      timer = setTimeout(resolve, opts.waitMs ?? 60_000);
+    }),
+  ]);
+  clearTimeout(timer);
 }

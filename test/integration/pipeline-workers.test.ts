@@ -156,6 +156,42 @@ describe.skipIf(!postgresUrl)("two worker processes on one PostgreSQL database",
     });
   });
 
+  describe("a worker stopped (SIGTERM) while a run is in progress", () => {
+    let target: StoreTarget;
+    let store: Store;
+    let agency: FakeAgency;
+    let worker: CliProcess | null = null;
+
+    beforeAll(async () => {
+      expect(buildError).toBeNull();
+      target = postgresTarget()!;
+      store = await target.open();
+      agency = await startFakeAgency();
+      await addSource(store, rseSource(agency), { schedule: EVERY_2_SECONDS });
+    });
+    afterAll(async () => {
+      if (worker) await stopWorker(worker);
+      await agency?.close();
+      await store?.close();
+      await target?.cleanup();
+    });
+
+    it("finishes the run and logs it before exiting", async () => {
+      // The first run's request is answered after 4 seconds.
+      agency.inject({ kind: "delay", ms: 4000 }, { route: "sdmx" });
+      worker = await startWorker(target, "worker-stopping");
+      const running = await waitFor("a run in progress", async () => (await runLog(store, JOB)).find((r) => r.status === "running"), 30_000);
+      worker.child.kill("SIGTERM");
+      expect(await worker.exited).toBe(0);
+      const row = (await runLog(store, JOB)).find((r) => r.id === running.id)!;
+      expect(row).toMatchObject({ status: "succeeded", error: null });
+      expect(row.counts).toMatchObject({ newVintages: 1 });
+      expect(await listVintages(store, SOURCE)).toHaveLength(1);
+      expect(worker.output()).toMatch(/waiting for 1 running job to finish/);
+      expect((await runLog(store, JOB)).filter((r) => r.status === "running")).toEqual([]);
+    });
+  });
+
   describe("a worker killed (SIGKILL) while committing a vintage", () => {
     let target: StoreTarget;
     let store: Store;
