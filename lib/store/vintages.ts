@@ -4,7 +4,7 @@
  * disappears. Reading "as of" vintage v takes, for each series and period, the newest row whose
  * vintage seq is <= v's seq. A release is committed in one transaction: all of it or nothing.
  */
-import { canonicalRelease, periodYear, releaseContentHash } from "../ingestion/release";
+import { canonicalRelease, releaseContentHash } from "../ingestion/release";
 import type { Concept, MappedObservation } from "../ingestion/types";
 import { classifyEconomyCode } from "../economies";
 import { AppError } from "../errors";
@@ -76,21 +76,20 @@ export interface CommitResult {
   warnings: string[];
 }
 
-interface CurrentRow {
-  series_id: number;
-  period: string;
-  value: number | null;
-  status: string | null;
-  removed: boolean;
-}
-
-const CHUNK = 5000;
+/** Rows per INSERT ... SELECT FROM unnest(...) statement. */
+const CHUNK = 10_000;
 
 /**
  * Commit a whole release as a new vintage of its source.
  * - A release whose content equals the source's latest vintage creates nothing ("unchanged").
  * - A label already used by the source with other content is a CONFLICT.
  * - Invalid or duplicate observations throw before anything is written.
+ *
+ * How the comparison with the source's current state is made: the first release of a source is
+ * inserted as it stands (every value is added). A later release is first copied into a temporary
+ * table of the transaction, and one statement compares it with the current state (the newest row
+ * per series and period) and inserts the new and changed values and the removal markers, so the
+ * current state never travels to this process and memory does not grow with the size of the store.
  */
 export async function commitRelease(store: Store, input: ReleaseInput): Promise<CommitResult> {
   const canonical = canonicalRelease(input.observations);
@@ -133,82 +132,120 @@ export async function commitRelease(store: Store, input: ReleaseInput): Promise<
     await upsertEconomies(tx, canonical, input.economyNames ?? {}, declared, input.isDemo ?? false);
     const seriesIds = await upsertSeries(tx, sourceId, canonical, warnings);
 
-    // The source's current state: newest row per (series, period).
-    const current = await tx.query<CurrentRow>(
-      `SELECT DISTINCT ON (o.series_id, o.period) o.series_id, o.period, o.value, o.status, o.removed
-         FROM observation o JOIN series s ON s.id = o.series_id
-        WHERE s.source_id = $1
-        ORDER BY o.series_id, o.period, o.vintage_seq DESC`,
-      [sourceId],
-    );
-    const state = new Map<string, CurrentRow>();
-    for (const r of current.rows) if (!r.removed) state.set(`${r.series_id}|${r.period}`, r);
-
-    const rows: { seriesId: number; period: string; value: number | null; status: string | null; removed: boolean }[] = [];
-    const counts: ReleaseCounts = { observations: canonical.length, added: 0, revised: 0, removed: 0, unchanged: 0 };
-    for (const o of canonical) {
-      const seriesId = seriesIds.get(`${o.economy}|${o.concept}|${o.unit}`)!;
-      const key = `${seriesId}|${o.period}`;
-      const old = state.get(key);
-      const status = o.status ?? null;
-      if (!old) {
-        counts.added++;
-        rows.push({ seriesId, period: o.period, value: o.value, status, removed: false });
-      } else {
-        state.delete(key);
-        if (old.value === o.value && (old.status ?? null) === status) counts.unchanged++;
-        else {
-          counts.revised++;
-          rows.push({ seriesId, period: o.period, value: o.value, status, removed: false });
-        }
-      }
-    }
-    for (const gone of state.values()) {
-      counts.removed++;
-      rows.push({ seriesId: gone.series_id, period: gone.period, value: null, status: null, removed: true });
-    }
-
     const seq = (prev?.seq ?? 0) + 1;
     const notes = [...(input.notes ?? []), ...warnings];
     const v = await tx.query<{ id: number }>(
-      `INSERT INTO vintage (source_id, seq, label, released_at, fetched_at, content_hash, observation_count, added_count, revised_count, removed_count, notes, is_demo)
-       VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11::jsonb, $12) RETURNING id`,
-      [
-        sourceId,
-        seq,
-        input.label,
-        input.releasedAt ?? null,
-        input.fetchedAt ?? new Date(),
-        hash,
-        counts.observations,
-        counts.added,
-        counts.revised,
-        counts.removed,
-        JSON.stringify(notes),
-        input.isDemo ?? false,
-      ],
+      `INSERT INTO vintage (source_id, seq, label, released_at, fetched_at, content_hash, observation_count, notes, is_demo)
+       VALUES ($1, $2, $3, $4, $5, $6, $7, $8::jsonb, $9) RETURNING id`,
+      [sourceId, seq, input.label, input.releasedAt ?? null, input.fetchedAt ?? new Date(), hash, canonical.length, JSON.stringify(notes), input.isDemo ?? false],
     );
     const vintageId = v.rows[0]!.id;
-    for (let i = 0; i < rows.length; i += CHUNK) {
-      const part = rows.slice(i, i + CHUNK);
-      await tx.query(
+
+    const hasState = await tx.query<{ x: boolean }>(
+      `SELECT EXISTS (SELECT 1 FROM observation o JOIN series s ON s.id = o.series_id WHERE s.source_id = $1) AS x`,
+      [sourceId],
+    );
+    const counts: ReleaseCounts = { observations: canonical.length, added: 0, revised: 0, removed: 0, unchanged: 0 };
+    if (!hasState.rows[0]!.x) {
+      // Nothing stored yet for this source: every value is added.
+      await insertInChunks(
+        tx,
         `INSERT INTO observation (series_id, vintage_id, vintage_seq, period, year, value, status, removed)
-         SELECT s, $2::int, $3::int, p, y, v, st, r
-           FROM unnest($1::int[], $4::text[], $5::int[], $6::float8[], $7::text[], $8::bool[]) AS t(s, p, y, v, st, r)`,
-        [
-          part.map((r) => r.seriesId),
-          vintageId,
-          seq,
-          part.map((r) => r.period),
-          part.map((r) => periodYear(r.period)),
-          part.map((r) => r.value),
-          part.map((r) => r.status),
-          part.map((r) => r.removed),
-        ],
+         SELECT s, $5::int, $6::int, p, substr(p, 1, 4)::int, v, st, false
+           FROM unnest($1::int[], $2::text[], $3::float8[], $4::text[]) AS t(s, p, v, st)`,
+        canonical,
+        seriesIds,
+        [vintageId, seq],
       );
+      counts.added = canonical.length;
+    } else {
+      await tx.exec(`CREATE TEMP TABLE release_stage (series_id int NOT NULL, period text NOT NULL, value float8 NOT NULL, status text) ON COMMIT DROP`);
+      await insertInChunks(
+        tx,
+        `INSERT INTO release_stage (series_id, period, value, status) SELECT * FROM unnest($1::int[], $2::text[], $3::float8[], $4::text[])`,
+        canonical,
+        seriesIds,
+        [],
+      );
+      await tx.exec(`ANALYZE release_stage`);
+      // Current state: the newest row per (series, period) of the source. A staged value is added
+      // when the slot is empty or removed, revised when value or status differ; a current value
+      // missing from the release gets a removal marker.
+      const diff = await tx.query<{ added: number; revised: number; removed: number }>(
+        `WITH cur AS (
+           SELECT DISTINCT ON (o.series_id, o.period) o.series_id, o.period, o.value, o.status, o.removed
+             FROM observation o JOIN series s ON s.id = o.series_id
+            WHERE s.source_id = $1
+            ORDER BY o.series_id, o.period, o.vintage_seq DESC
+         ), diff AS (
+           SELECT COALESCE(n.series_id, c.series_id) AS series_id, COALESCE(n.period, c.period) AS period,
+                  n.value, n.status, n.series_id IS NULL AS removed, (c.series_id IS NULL OR c.removed) AS is_new
+             FROM release_stage n FULL JOIN cur c ON c.series_id = n.series_id AND c.period = n.period
+            WHERE CASE WHEN n.series_id IS NULL THEN NOT c.removed
+                       ELSE c.series_id IS NULL OR c.removed OR c.value IS DISTINCT FROM n.value OR c.status IS DISTINCT FROM n.status END
+         ), ins AS (
+           INSERT INTO observation (series_id, vintage_id, vintage_seq, period, year, value, status, removed)
+           SELECT series_id, $2::int, $3::int, period, substr(period, 1, 4)::int, value, status, removed FROM diff
+         )
+         SELECT count(*) FILTER (WHERE NOT removed AND is_new)::int AS added,
+                count(*) FILTER (WHERE NOT removed AND NOT is_new)::int AS revised,
+                count(*) FILTER (WHERE removed)::int AS removed
+           FROM diff`,
+        [sourceId, vintageId, seq],
+      );
+      const d = diff.rows[0]!;
+      counts.added = d.added;
+      counts.revised = d.revised;
+      counts.removed = d.removed;
     }
+    counts.unchanged = canonical.length - counts.added - counts.revised;
+    await tx.query(`UPDATE vintage SET added_count = $2, revised_count = $3, removed_count = $4 WHERE id = $1`, [
+      vintageId,
+      counts.added,
+      counts.revised,
+      counts.removed,
+    ]);
     return { status: "created", vintage: { id: vintageId, seq, label: input.label }, counts, warnings } satisfies CommitResult;
   });
+}
+
+/**
+ * Run `sql` once per CHUNK observations with the parameters $1 series ids, $2 periods, $3 values,
+ * $4 statuses, followed by `extra` ($5, ...). Observations are in canonical order, so the series
+ * id is looked up once per run of one series.
+ */
+async function insertInChunks(
+  tx: SqlConnection,
+  sql: string,
+  canonical: readonly MappedObservation[],
+  seriesIds: ReadonlyMap<string, number>,
+  extra: readonly unknown[],
+): Promise<void> {
+  let last: MappedObservation | null = null;
+  let lastId = 0;
+  for (let i = 0; i < canonical.length; i += CHUNK) {
+    const n = Math.min(CHUNK, canonical.length - i);
+    const ids = new Array<number>(n);
+    const periods = new Array<string>(n);
+    const values = new Array<number | null>(n);
+    const statuses = new Array<string | null>(n);
+    for (let j = 0; j < n; j++) {
+      const o = canonical[i + j]!;
+      if (!last || o.economy !== last.economy || o.concept !== last.concept || o.unit !== last.unit) {
+        lastId = seriesIds.get(seriesKeyOf(o))!;
+        last = o;
+      }
+      ids[j] = lastId;
+      periods[j] = o.period;
+      values[j] = o.value;
+      statuses[j] = o.status ?? null;
+    }
+    await tx.query(sql, [ids, periods, values, statuses, ...extra]);
+  }
+}
+
+function seriesKeyOf(o: Pick<MappedObservation, "economy" | "concept" | "unit">): string {
+  return `${o.economy}|${o.concept}|${o.unit}`;
 }
 
 function isIsoDate(s: string): boolean {
@@ -222,7 +259,8 @@ async function upsertEconomies(
   declared: ReadonlySet<string>,
   isDemo: boolean,
 ): Promise<void> {
-  const codes = [...new Set(canonical.map((o) => o.economy))];
+  const codes: string[] = [];
+  for (const o of canonical) if (codes[codes.length - 1] !== o.economy) codes.push(o.economy); // canonical order: by economy first
   if (!codes.length) return;
   const classes = codes.map((c) => classifyEconomyCode(c, { declaredEconomy: declared.has(c) }));
   await tx.query(
@@ -244,12 +282,12 @@ async function upsertSeries(
   canonical: readonly MappedObservation[],
   warnings: string[],
 ): Promise<Map<string, number>> {
-  const wanted = new Map<string, MappedObservation>();
+  // Canonical order groups each series' observations together: one entry per run.
+  const list: MappedObservation[] = [];
   for (const o of canonical) {
-    const k = `${o.economy}|${o.concept}|${o.unit}`;
-    if (!wanted.has(k)) wanted.set(k, o);
+    const last = list[list.length - 1];
+    if (!last || last.economy !== o.economy || last.concept !== o.concept || last.unit !== o.unit) list.push(o);
   }
-  const list = [...wanted.values()];
   if (list.length) {
     await tx.query(
       `INSERT INTO series (source_id, economy_code, concept, unit, series_key)
@@ -267,7 +305,7 @@ async function upsertSeries(
   const ids = new Map<string, number>();
   const unitsByEconomyConcept = new Map<string, string[]>();
   for (const r of all.rows) {
-    ids.set(`${r.economy_code}|${r.concept}|${r.unit}`, r.id);
+    ids.set(seriesKeyOf({ economy: r.economy_code, concept: r.concept as Concept, unit: r.unit }), r.id);
     if (r.live) {
       const k = `${r.economy_code}|${r.concept}`;
       unitsByEconomyConcept.set(k, [...(unitsByEconomyConcept.get(k) ?? []), r.unit]);
