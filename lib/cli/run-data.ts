@@ -86,10 +86,6 @@ export async function runImport(o: ImportOptions): Promise<void> {
   const { def, parserOptions } = importDefinition(o);
   const store = await openCliStore();
   try {
-    const existing = await store.prisma.source.findUnique({ where: { name: def.name } });
-    if (!existing || (existing.kind === "file" && !(existing.config as { baseUrl?: string }).baseUrl)) {
-      await upsertSource(store, { name: def.name, title: existing?.title ?? def.title, kind: def.kind, format: def.format, config: def });
-    }
     progress(`Reading ${o.file} ...`);
     const res = await importRelease(store, {
       def,
@@ -97,6 +93,13 @@ export async function runImport(o: ImportOptions): Promise<void> {
       payloads: [{ body: fs.createReadStream(o.file), name: o.file, parserOptions: { ...parserOptions, locations: true } }],
       releasedAt: released,
       skipUnknownEconomies: o.skipUnknownEconomies ?? false,
+      // The source is created (or its import-only definition updated) only for a file that is clean.
+      beforeCommit: async () => {
+        const existing = await store.prisma.source.findUnique({ where: { name: def.name } });
+        if (!existing || (existing.kind === "file" && !(existing.config as { baseUrl?: string }).baseUrl)) {
+          await upsertSource(store, { name: def.name, title: existing?.title ?? def.title, kind: def.kind, format: def.format, config: def });
+        }
+      },
     });
     for (const n of res.prepared.notes) progress(`note: ${n}`);
     for (const w of res.warnings) progress(`warning: ${w}`);
