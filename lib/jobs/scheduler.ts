@@ -21,6 +21,9 @@ interface SchedulerState {
 }
 const holder = globalThis as { __ideafrontScheduler?: SchedulerState };
 
+/** Longest random wait of an instance before it claims a scheduled tick. */
+const CLAIM_JITTER_MS = 250;
+
 /**
  * The fetch job of one source: fetch, store a new vintage when the release changed, then refit the
  * active specs when the source feeds the model. The refit also runs when the release did not
@@ -107,7 +110,10 @@ async function reconcile(state: SchedulerState, opts: { instance: string; demoPa
           state.running.delete(run);
         }
       },
-      { name: job.name, timezone: job.timezone, noOverlap: true },
+      // Each instance waits a random 0-250 ms before claiming the tick, so the runs spread over the
+      // instances instead of all going to the one that happens to answer fastest (the tick itself
+      // is the scheduled second, the same everywhere, so it is still claimed once).
+      { name: job.name, timezone: job.timezone, noOverlap: true, maxRandomDelay: CLAIM_JITTER_MS },
     );
     state.tasks.set(name, { task, key: `${s.schedule}|${s.timezone}` });
   }
