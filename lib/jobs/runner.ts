@@ -78,7 +78,7 @@ function describeDatabaseLoss(err: unknown): string | null {
   const m = e.message ?? "";
   const lost =
     (e.code !== undefined && (CONNECTION_LOST_CODES.has(e.code) || e.code === "ECONNREFUSED" || e.code === "ECONNRESET")) ||
-    /Connection terminated|terminating connection|the database system is (shutting down|starting up)/.test(m);
+    /Connection terminated|terminating connection|the database system is (shutting down|starting up)|connection error and is not queryable/.test(m);
   if (!lost) return null;
   return `The database connection was lost during the run (${m.split("\n")[0]!.trim().replace(/\.$/, "")}); the interrupted step committed nothing and the next run redoes the work.`;
 }

@@ -2,8 +2,8 @@
  * Fault drills of the scheduled pipeline, each through the real fetch job: the statistics API
  * times out, answers 500, 503 with Retry-After, 429, a truncated body, an invalid payload or a
  * reset connection; a failing source next to a working one under the scheduler; and, on
- * PostgreSQL, the database restarted mid-run and a process killed (SIGKILL) mid-import and
- * mid-refit. After each drill the store is consistent (no new vintage, the previous one still
+ * PostgreSQL, the server restarted mid-run, the database unreachable for seconds mid-commit, and
+ * a process killed (SIGKILL) mid-import and mid-refit. After each drill the store is consistent (no new vintage, the previous one still
  * current, no half-written fit set, the observation count unchanged) and the run log tells the
  * truth (status and one sentence naming the URL and what happened). The outcomes are printed as
  * a table; a failing drill fails its test.
@@ -23,6 +23,7 @@ import { postgresUrl, storeTargets, type StoreTarget } from "./support/stores";
 import {
   addSource,
   buildCli,
+  cutOffDatabase,
   databaseName,
   halfWrittenFitSets,
   haveSharedData,
@@ -345,7 +346,7 @@ for (const target of storeTargets()) {
           const current = await readAsOf(store, { source: PANEL });
           const popBefore = await snapshot(store, POP);
           agency.publish({ label: "release 4", observations: withoutPopulation2019(data.release2) });
-          // The population source's fetch is in flight while the server is down (answered after 8 s).
+          // The population source's fetch is in flight during the restart (answered after 8 s).
           agency.inject({ kind: "delay", ms: 8000 }, { times: 1, match: popRequest });
           const lock = await holdInsertLock(dbUrl, "observation");
           let panelRun: Promise<RunResult>;
@@ -356,8 +357,7 @@ for (const target of storeTargets()) {
             popRun = runJob(store, popJob, { tick: new Date(), trigger: "schedule", instance: "drills" });
             await waitFor("the panel run blocked in its commit", async () => (await waitingInserts(postgresUrl!, databaseName(dbUrl), "observation")).length > 0, 30_000);
             await waitFor("the population fetch in flight", async () => agency.requests.some((q) => popRequest(q) && q.status === undefined), 30_000);
-            // Down for 3 seconds: the failed run's log row can only be written once it is back.
-            await restartPostgres(postgresUrl!, { downMs: 3000 });
+            await restartPostgres(postgresUrl!);
           } finally {
             await lock.release();
           }
@@ -365,7 +365,10 @@ for (const target of storeTargets()) {
           const popResult = await popRun;
 
           expect(panelResult.status).toBe("failed");
-          expect(panelResult.error).toMatch(/^The database connection was lost during the run \(terminating connection due to administrator command\); the interrupted step committed nothing and the next run redoes the work\.$/);
+          // The cause in brackets is the driver's: the server's "terminating connection due to
+          // administrator command", or the client's own note when the session died between two
+          // statements of the transaction.
+          expect(panelResult.error).toMatch(/^The database connection was lost during the run \((terminating connection due to administrator command|Connection terminated unexpectedly|Client has encountered a connection error and is not queryable)\); the interrupted step committed nothing and the next run redoes the work\.$/);
           const row = await logged(store, panelResult);
           expect(row.error).toBe(panelResult.error);
           const afterFault = await expectUntouched(store, PANEL, before, current);
@@ -384,13 +387,47 @@ for (const target of storeTargets()) {
         });
       });
 
+      it("database unreachable for 3 s mid-commit: the failure is logged once it is back, nothing stored, the next run succeeds", async () => {
+        await drill("database unreachable for 3 s mid-commit (its sessions cut, connections refused)", target.kind, async () => {
+          const dbUrl = target.env().DATABASE_URL!;
+          const db = databaseName(dbUrl);
+          const before = await snapshot(store, PANEL);
+          const current = await readAsOf(store, { source: PANEL });
+          agency.publish({ label: "release 4b", observations: data.release1 });
+          const lock = await holdInsertLock(dbUrl, "observation");
+          let run: Promise<RunResult>;
+          let backAt = 0;
+          try {
+            run = runJob(store, panelJob, { tick: nextTick(), trigger: "schedule", instance: "drills" });
+            await waitFor("the run blocked in its commit", async () => (await waitingInserts(postgresUrl!, db, "observation")).length > 0, 30_000);
+            // Only this test's database goes away (the lock holder's session with it).
+            await cutOffDatabase(postgresUrl!, db, 3000);
+            backAt = Date.now();
+          } finally {
+            await lock.release();
+          }
+          const result = await run;
+          expect(result.status).toBe("failed");
+          expect(result.error).toMatch(/^The database connection was lost during the run \(terminating connection due to administrator command\); the interrupted step committed nothing and the next run redoes the work\.$/);
+          const row = await logged(store, result);
+          // The failure could only be written once the database was reachable again.
+          expect(+row.finishedAt!).toBeGreaterThanOrEqual(backAt - 1000);
+          const afterFault = await expectUntouched(store, PANEL, before, current);
+          const next = await runJob(store, panelJob, { tick: nextTick(), trigger: "schedule", instance: "drills" });
+          expect(next.status).toBe("succeeded");
+          expect(next.outcome!.counts).toMatchObject({ newVintages: 1, fitSets: 2 });
+          expect(await halfWrittenFitSets(store)).toEqual([]);
+          return { run: row, before, after: afterFault, next: nextRun(next) };
+        });
+      });
+
       it("worker SIGKILL mid-import: no partial vintage; abandoned after the stale period; the next run stores the release", async () => {
         expect(cliError).toBeNull();
         await drill("process killed (SIGKILL) mid-import", target.kind, async () => {
           const dbUrl = target.env().DATABASE_URL!;
           const before = await snapshot(store, PANEL);
           const current = await readAsOf(store, { source: PANEL });
-          agency.publish({ label: "release 5", observations: data.release1 });
+          agency.publish({ label: "release 5", observations: data.release2 });
           const lock = await holdInsertLock(dbUrl, "observation");
           const child = startCli(["fetch", "--source", PANEL], target.env(), "drills-killed");
           let pid: number;
@@ -416,7 +453,7 @@ for (const target of storeTargets()) {
           const row = (await findRun(store, killed.id))!;
           expect(row).toMatchObject({ status: "abandoned", error: "The instance running this job stopped before it finished (no heartbeat); the next run redoes the work." });
           expect((await snapshot(store, PANEL)).vintages).toBe(before.vintages + 1);
-          expect(await readAsOf(store, { source: PANEL })).toHaveLength(data.release1.length);
+          expect(await readAsOf(store, { source: PANEL })).toHaveLength(data.release2.length);
           expect(await halfWrittenFitSets(store)).toEqual([]);
           return { run: row, before, after: afterFault, next: nextRun(next) };
         });
@@ -427,7 +464,7 @@ for (const target of storeTargets()) {
         await drill("process killed (SIGKILL) mid-refit", target.kind, async () => {
           const dbUrl = target.env().DATABASE_URL!;
           const before = await snapshot(store, PANEL);
-          agency.publish({ label: "release 6", observations: data.release2 });
+          agency.publish({ label: "release 6", observations: withoutPopulation2019(data.release1) });
           const lock = await holdInsertLock(dbUrl, "fit_set");
           const child = startCli(["fetch", "--source", PANEL], target.env(), "drills-killed-refit");
           let pid: number;

@@ -276,20 +276,18 @@ export function databaseName(url: string): string {
 }
 
 /**
- * Restart the local PostgreSQL cluster: stop it (fast shutdown: sessions are terminated, open
- * transactions rolled back), keep it down for `downMs`, start it and wait until it answers. The
- * server is started again whatever happens: other people's tests use it.
+ * Restart the local PostgreSQL cluster (fast shutdown: sessions are terminated, open
+ * transactions rolled back) and wait until it answers. Everyone's sessions on the server are cut,
+ * so keep it to the one drill that needs it, and brief; the server is started again whatever
+ * happens.
  */
-export async function restartPostgres(adminUrl: string, opts: { downMs?: number } = {}): Promise<void> {
+export async function restartPostgres(adminUrl: string): Promise<void> {
   const version = fs.readdirSync("/etc/postgresql")[0] ?? "15";
   const ctl = (...args: string[]) => spawnSync("pg_ctlcluster", ["--skip-systemctl-redirect", version, "main", ...args], { encoding: "utf8", timeout: 60_000 });
-  try {
-    const stop = ctl("stop", "-m", "fast");
-    if (stop.status !== 0) throw new Error(`pg_ctlcluster stop failed: ${(stop.stderr || stop.stdout).trim()}`);
-    await new Promise((r) => setTimeout(r, opts.downMs ?? 0));
-  } finally {
-    const start = ctl("start");
-    if (start.status !== 0 && !/already running/i.test(start.stderr + start.stdout)) throw new Error(`pg_ctlcluster start failed: ${(start.stderr || start.stdout).trim()}`);
+  const r = ctl("restart", "-m", "fast");
+  if (r.status !== 0) {
+    ctl("start");
+    throw new Error(`pg_ctlcluster restart failed: ${(r.stderr || r.stdout).trim()}`);
   }
   await waitFor("PostgreSQL to accept connections again", async () => {
     const c = new pg.Client({ connectionString: adminUrl });
@@ -298,6 +296,27 @@ export async function restartPostgres(adminUrl: string, opts: { downMs?: number 
     await c.end();
     return true;
   }, 60_000, 200);
+}
+
+/**
+ * An outage of one database, for `ms`: new connections to it are refused (ALLOW_CONNECTIONS
+ * false) and its sessions are terminated, as a server restart would, without touching the other
+ * databases on the server. Returns when connections are allowed again.
+ */
+export async function cutOffDatabase(adminUrl: string, db: string, ms: number): Promise<void> {
+  const c = new pg.Client({ connectionString: adminUrl });
+  await c.connect();
+  try {
+    await c.query(`ALTER DATABASE "${db}" WITH ALLOW_CONNECTIONS false`);
+    try {
+      await c.query(`SELECT pg_terminate_backend(pid) FROM pg_stat_activity WHERE datname = $1 AND pid <> pg_backend_pid()`, [db]);
+      await new Promise((r) => setTimeout(r, ms));
+    } finally {
+      await c.query(`ALTER DATABASE "${db}" WITH ALLOW_CONNECTIONS true`);
+    }
+  } finally {
+    await c.end();
+  }
 }
 
 // ---------------------------------------------------------------------------------------------
