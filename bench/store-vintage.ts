@@ -238,7 +238,18 @@ async function freshStore(kind: StoreKind, template: string, run: number): Promi
   await withAdmin((c) => c.query(`CREATE DATABASE "${name}"`));
   const u = new URL(adminUrl());
   u.pathname = `/${name}`;
-  return { location: u.toString(), cleanup: () => withAdmin((c) => c.query(`DROP DATABASE IF EXISTS "${name}" WITH (FORCE)`)).then(() => {}) };
+  const drop = async () => {
+    // A server restarted by someone else's test may still be starting: try for half a minute.
+    for (let attempt = 1; ; attempt++) {
+      try {
+        return void (await withAdmin((c) => c.query(`DROP DATABASE IF EXISTS "${name}" WITH (FORCE)`)));
+      } catch (err) {
+        if (attempt >= 15) throw err;
+        await new Promise((r) => setTimeout(r, 2000));
+      }
+    }
+  };
+  return { location: u.toString(), cleanup: drop };
 }
 
 /**
