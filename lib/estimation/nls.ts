@@ -27,7 +27,7 @@
  *
  * References: K. Levenberg (1944), Quart. Appl. Math. 2, 164-168; D. W. Marquardt (1963), J. SIAM
  * 11(2), 431-441; J. J. Moré (1978), "The Levenberg-Marquardt algorithm: implementation and
- * theory", Lecture Notes in Mathematics 630, 105-116; H. B. Nielsen (1999), "Damping parameter in
+ * theory", in G. A. Watson (ed.), Numerical Analysis, Springer LNM 630, 105-116; H. B. Nielsen (1999), "Damping parameter in
  * Marquardt's method", IMM-REP-1999-05, DTU; M. K. Transtrum and J. P. Sethna (2012), "Improvements
  * to the Levenberg-Marquardt algorithm for nonlinear least-squares minimization", arXiv:1201.5885.
  */
