@@ -19,8 +19,8 @@ export default async function OverviewPage() {
   const headline = specs.find((s) => s.isDefault);
   const set = headline ? await latestFitSet(store, headline.id) : null;
   const fits = set ? await fitsOfSet(store, set.id) : [];
-  const latestChanges = headline && set ? await changeFeed(store, { spec: headline.name, limit: 500 }) : [];
-  const moves = new Map(latestChanges.filter((c) => c.toLabel === set?.asOfLabel).map((c) => [c.economy, c]));
+  // What moved in the latest fit set, per economy.
+  const moves = new Map((set ? await changeFeed(store, { toFitSetId: set.id, limit: 1000 }) : []).map((c) => [c.economy, c]));
   const feed = await changeFeed(store, { flaggedOnly: true, spec: headline?.name, limit: 12 });
   const vintages = sources.reduce((n, s) => n + s.vintages, 0);
   const latest = sources.flatMap((s) => (s.latest ? [s.latest.label] : [])).sort().at(-1);

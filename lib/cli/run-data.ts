@@ -230,15 +230,9 @@ export async function runSourcesAdd(o: { catalog?: string; definition?: string }
 export async function runSourcesEnable(name: string, enabled: boolean): Promise<void> {
   const store = await openCliStore();
   try {
-    const row = await store.prisma.source.findUnique({ where: { name } });
-    if (!row) throw new UsageError(`no source named ${name}`);
-    if (enabled) {
-      const def = parseSourceDefinition({ ...(row.config as object), enabled: true });
-      await store.prisma.source.update({ where: { name }, data: { enabled: true, config: def as object } });
-    } else {
-      await store.prisma.source.update({ where: { name }, data: { enabled: false, config: { ...(row.config as object), enabled: false } } });
-    }
-    console.log(`Source ${name} ${enabled ? "enabled" : "disabled"}; running servers and workers pick this up at their next start.`);
+    const { updateSourceSettings } = await import("../store/sources");
+    await updateSourceSettings(store, name, { enabled });
+    console.log(`Source ${name} ${enabled ? "enabled" : "disabled"}; running servers and workers pick this up within a minute.`);
   } finally {
     await store.close();
   }

@@ -15,7 +15,7 @@
  */
 import { z } from "zod";
 import { validate as isValidCron } from "node-cron";
-import countries from "i18n-iso-countries";
+import { alpha2ToAlpha3 } from "@/lib/economies";
 import { CONCEPTS } from "@/lib/ingestion/types";
 
 export const SOURCE_KINDS = ["sdmx", "jsonstat", "worldbank", "file", "demo"] as const;
@@ -255,7 +255,8 @@ function queryIdOf(q: { id?: string; indicator?: string; key?: string; dataset?:
   return q.id ?? q.indicator ?? q.key ?? q.dataset;
 }
 
-function isTimeZone(tz: string): boolean {
+/** Whether `tz` is an IANA time zone this runtime knows (e.g. "Europe/Paris"). */
+export function isTimeZone(tz: string): boolean {
   try {
     new Intl.DateTimeFormat("en", { timeZone: tz });
     return true;
@@ -395,7 +396,7 @@ export function buildRequestUrls(def: SourceDefinition, options: { page?: number
  * The ISO 3166-1 alpha-3 code of an economy code as a source publishes it, or null when it has
  * none (aggregates such as Eurostat "EU27_2020"). Order: the definition's economyCodeMap, then a
  * three-letter code as it stands (ISO alpha-3 or an aggregate such as World Bank "WLD"), then an
- * ISO alpha-2 code converted with i18n-iso-countries. Example: with economyCodeMap { EL: "GRC" },
+ * ISO alpha-2 code converted with i18n-iso-countries (Eurostat's EL and UK included). Example: with economyCodeMap { EL: "GRC" },
  * "EL" gives "GRC", "FR" gives "FRA", "DEU" gives "DEU".
  */
 export function mapEconomyCode(def: Pick<SourceDefinition, "economyCodeMap">, code: string): string | null {
@@ -403,7 +404,7 @@ export function mapEconomyCode(def: Pick<SourceDefinition, "economyCodeMap">, co
   if (mapped !== undefined) return mapped;
   const upper = code.trim().toUpperCase();
   if (/^[A-Z]{3}$/.test(upper)) return upper;
-  if (/^[A-Z]{2}$/.test(upper)) return countries.alpha2ToAlpha3(upper) ?? null;
+  if (/^[A-Z]{2}$/.test(upper)) return alpha2ToAlpha3(upper);
   return null;
 }
 

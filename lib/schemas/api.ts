@@ -1,6 +1,7 @@
 /** zod schemas of every request body and query the HTTP API accepts. */
 import { z } from "zod";
 import { validate as isValidCron } from "node-cron";
+import { isTimeZone } from "../ingestion/sources";
 
 export const sourceName = z.string().regex(/^[a-z0-9]+(?:-[a-z0-9]+)*$/, "must be a source slug");
 export const economyCode = z.string().regex(/^[A-Z0-9]{3}$/, "must be a three-letter economy code");
@@ -33,17 +34,7 @@ export const SourcePatch = z
   .strictObject({
     enabled: z.boolean().optional(),
     schedule: z.string().trim().refine((s) => isValidCron(s), "must be a cron expression (minute hour day month weekday)").optional(),
-    timezone: z
-      .string()
-      .refine((tz) => {
-        try {
-          new Intl.DateTimeFormat("en", { timeZone: tz });
-          return true;
-        } catch {
-          return false;
-        }
-      }, "must be an IANA time zone, e.g. Europe/Paris")
-      .optional(),
+    timezone: z.string().refine(isTimeZone, "must be an IANA time zone, e.g. Europe/Paris").optional(),
   })
   .refine((o) => Object.keys(o).length > 0, "give at least one of enabled, schedule, timezone");
 

@@ -13,15 +13,10 @@ import { validate as isValidCron } from "node-cron";
 import { ConfigError } from "../config";
 import type { Store } from "./db";
 import { setAlertSettings } from "./fits";
+import { updateSourceSettings } from "./sources";
+import { isTimeZone } from "../ingestion/sources";
 
-const timeZone = z.string().refine((tz) => {
-  try {
-    new Intl.DateTimeFormat("en", { timeZone: tz });
-    return true;
-  } catch {
-    return false;
-  }
-}, "must be an IANA time zone, e.g. Europe/Paris");
+const timeZone = z.string().refine(isTimeZone, "must be an IANA time zone, e.g. Europe/Paris");
 
 export const configFileSchema = z.strictObject({
   sources: z
@@ -69,7 +64,11 @@ export async function applyConfigFile(store: Store, env: NodeJS.ProcessEnv = pro
     if (!row) throw new ConfigError("IDEAFRONT_CONFIG", `The configuration file ${found.file}, field sources.${name}: no source of that name.`);
     const data = { ...(s.schedule ? { schedule: s.schedule } : {}), ...(s.timezone ? { timezone: s.timezone } : {}), ...(s.enabled !== undefined ? { enabled: s.enabled } : {}) };
     if (Object.keys(data).length) {
-      await store.prisma.source.update({ where: { name }, data: { ...data, config: { ...(row.config as object), ...data } } });
+      try {
+        await updateSourceSettings(store, name, data);
+      } catch (err) {
+        throw new ConfigError("IDEAFRONT_CONFIG", `The configuration file ${found.file}, field sources.${name}: ${(err as Error).message}`);
+      }
       lines.push(`source ${name}: ${Object.entries(data).map(([k, v]) => `${k} ${v}`).join(", ")}`);
     }
   }

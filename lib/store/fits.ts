@@ -251,12 +251,16 @@ export interface ChangeFeedItem {
 }
 
 /** The change feed, newest first. */
-export async function changeFeed(store: Store, opts: { spec?: string; economy?: string; flaggedOnly?: boolean; limit?: number } = {}): Promise<ChangeFeedItem[]> {
+export async function changeFeed(
+  store: Store,
+  opts: { spec?: string; economy?: string; flaggedOnly?: boolean; limit?: number; toFitSetId?: number } = {},
+): Promise<ChangeFeedItem[]> {
   const rows = await store.prisma.fitChange.findMany({
     where: {
       ...(opts.spec ? { spec: { name: opts.spec } } : {}),
       ...(opts.economy ? { economyCode: opts.economy } : {}),
       ...(opts.flaggedOnly ? { flagged: true } : {}),
+      ...(opts.toFitSetId !== undefined ? { toFitSetId: opts.toFitSetId } : {}),
     },
     include: { spec: { select: { name: true } }, economy: { select: { name: true, isDemo: true } }, from: { select: { asOfLabel: true } }, to: { select: { asOfLabel: true } } },
     orderBy: [{ toFitSetId: "desc" }, { economyCode: "asc" }],

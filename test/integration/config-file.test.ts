@@ -6,6 +6,7 @@ import { afterAll, describe, expect, it } from "vitest";
 import { applyConfigFile } from "@/lib/store/config-file";
 import { getAlertSettings } from "@/lib/store/fits";
 import { upsertSource } from "@/lib/store/vintages";
+import { parseSourceDefinition } from "@/lib/ingestion/sources";
 import { storeTargets } from "./support/stores";
 
 function writeConfig(content: unknown): string {
@@ -20,7 +21,8 @@ for (const target of storeTargets()) {
 
     it("applies schedules, time zones, switches and the alert threshold", async () => {
       const store = await target.open();
-      await upsertSource(store, { name: "wdi-researchers", title: "t", kind: "file", format: "csv", config: { name: "wdi-researchers" } });
+      const def = parseSourceDefinition({ name: "wdi-researchers", title: "t", kind: "file", format: "csv", queries: [{ concept: "researchers_per_million", unit: "per million people", economyDimension: "Country Code", id: "R" }] });
+      await upsertSource(store, { name: def.name, title: def.title, kind: def.kind, format: def.format, config: def });
       const file = writeConfig({ sources: { "wdi-researchers": { schedule: "30 5 * * 1-5", timezone: "Europe/Paris", enabled: true } }, alerts: { gStarThreshold: 0.0025 } });
       const lines = await applyConfigFile(store, { IDEAFRONT_CONFIG: file } as unknown as NodeJS.ProcessEnv);
       expect(lines).toEqual(["source wdi-researchers: schedule 30 5 * * 1-5, timezone Europe/Paris, enabled true", "alert threshold 0.0025"]);
