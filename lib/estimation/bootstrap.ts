@@ -81,16 +81,41 @@ class BlockStartSampler {
   reset(): void {
     this.left = 0;
   }
+  /** The next `count` digits into out[0..count), as `count` calls of next() would give them. */
+  fill(out: Int32Array, count: number): void {
+    const starts = this.starts;
+    if (starts === 1) {
+      out.fill(0, 0, count);
+      return;
+    }
+    let value = this.value;
+    let left = this.left;
+    for (let c = 0; c < count; c++) {
+      if (left === 0) {
+        value = this.rng.nextInt(this.range) | 0;
+        left = this.digitsPerDraw;
+      }
+      // value < 2^26: the truncated quotient is exact, and integer arithmetic keeps this fast.
+      const quotient = (value / starts) | 0;
+      out[c] = value - quotient * starts;
+      value = quotient;
+      left--;
+    }
+    this.value = value;
+    this.left = left;
+  }
   next(): number {
     if (this.starts === 1) return 0;
     if (this.left === 0) {
-      this.value = this.rng.nextInt(this.range);
+      this.value = this.rng.nextInt(this.range) | 0;
       this.left = this.digitsPerDraw;
     }
-    const digit = this.value % this.starts;
-    this.value = (this.value - digit) / this.starts;
+    // value < 2^26: the truncated quotient is exact, and integer arithmetic keeps this fast.
+    const value = this.value;
+    const quotient = (value / this.starts) | 0;
+    this.value = quotient;
     this.left--;
-    return digit;
+    return value - quotient * this.starts;
   }
 }
 
@@ -244,29 +269,44 @@ export function bootstrapOls(design: Matrix, y: Float64Array, options: OlsBootst
     for (let a = 0; a < k; a++) rowProducts[p++] = xt[i + a * n] * y[i];
   }
 
-  // 3. Sums over every possible block (full length b, and the shorter last block of each draw).
+  // 3. The summands of a draw in one table: the sums over every possible full block, over every
+  //    possible last (possibly shorter) block, and, when the table stays small next to the work it
+  //    saves, over every ordered pair of full blocks (halving the additions per draw).
   const starts = circular ? n : n - b + 1;
   const blocksPerDraw = Math.ceil(n / b);
-  const lastLength = n - (blocksPerDraw - 1) * b;
-  const blockSum = (length: number): Float64Array => {
-    const sums = new Float64Array(starts * m);
-    for (let s = 0; s < starts; s++) {
-      const off = s * m;
-      for (let l = 0; l < length; l++) {
-        let i = s + l;
-        if (i >= n) i -= n;
-        const src = i * m;
-        for (let q = 0; q < m; q++) sums[off + q] += rowProducts[src + q];
-      }
-    }
-    return sums;
-  };
-  const fullSums = blockSum(b);
-  const lastSums = lastLength === b ? fullSums : blockSum(lastLength);
+  const fullBlocks = blocksPerDraw - 1;
+  const usePairs = fullBlocks >= 2 && starts * starts <= (draws * fullBlocks) / 2;
+  const pairCount = usePairs ? starts * starts : 0;
+  const fullBase = pairCount * m;
+  const lastBase = fullBase + starts * m;
+  const table = new Float64Array(lastBase + starts * m);
+  addBlockSums(rowProducts, n, m, starts, b, table, fullBase);
+  addBlockSums(rowProducts, n, m, starts, n - fullBlocks * b, table, lastBase);
+  if (usePairs) addPairSums(table, starts, m, fullBase);
 
-  // 4. Draws: preallocated work buffers only.
+  // 4. Draws: everything allocated here, nothing per draw.
   const out = new Float64Array(draws * k);
-  const failed = runOlsDraws(out, draws, k, rng, starts, blocksPerDraw, fullSums, lastSums, scale, mean, constantColumn, constantColumn >= 0 ? x[constantColumn * n] : 1);
+  const plan: OlsDrawPlan = {
+    k,
+    m,
+    starts,
+    fullBlocks,
+    usePairs,
+    fullBase,
+    lastBase,
+    table,
+    scale,
+    mean,
+    constantColumn,
+    constantValue: constantColumn >= 0 ? x[constantColumn * n] : 1,
+    sampler: new BlockStartSampler(rng, starts),
+    blockStarts: new Int32Array(blocksPerDraw),
+    offsets: new Int32Array(blocksPerDraw),
+    sums: new Float64Array(m),
+    normal: new Float64Array(k * k),
+    rhs: new Float64Array(k),
+  };
+  const failed = runOlsDraws(plan, out, draws);
   const warnings: EstimationWarning[] = [];
   if (failed > 0) {
     warnings.push({
@@ -287,67 +327,81 @@ export function bootstrapOls(design: Matrix, y: Float64Array, options: OlsBootst
 }
 
 /**
- * The hot loop of `bootstrapOls`, kept as a small separate function so that the engine optimises
- * it on its own. Returns the number of failed (singular) draws.
+ * Sums over the `length` rows of every possible block start s (rows s, s+1, ... wrapping past n)
+ * of the packed row products, into table[base + s*m ..].
  */
-function runOlsDraws(
-  out: Float64Array,
-  draws: number,
-  k: number,
-  rng: Rng,
-  starts: number,
-  blocksPerDraw: number,
-  fullSums: Float64Array,
-  lastSums: Float64Array,
-  scale: Float64Array,
-  mean: Float64Array,
-  constantColumn: number,
-  constantValue: number,
-): number {
-  const m = (k * (k + 1)) / 2 + k;
-  const acc = new Float64Array(m);
-  const normal = new Float64Array(k * k);
-  const rhs = new Float64Array(k);
-  const sampler = new BlockStartSampler(rng, starts);
-  // Sums of PAIRS of full blocks halve the additions per draw when the table (starts^2 x m values)
-  // is small next to the work it saves.
-  const fullBlocks = blocksPerDraw - 1;
-  const usePairs = fullBlocks >= 2 && starts * starts <= (draws * fullBlocks) / 2;
-  let pairSums = fullSums;
-  if (usePairs) {
-    pairSums = new Float64Array(starts * starts * m);
-    for (let s1 = 0; s1 < starts; s1++) {
-      for (let s2 = 0; s2 < starts; s2++) {
-        const off = (s1 * starts + s2) * m;
-        for (let q = 0; q < m; q++) pairSums[off + q] = fullSums[s1 * m + q] + fullSums[s2 * m + q];
-      }
+function addBlockSums(rowProducts: Float64Array, n: number, m: number, starts: number, length: number, table: Float64Array, base: number): void {
+  for (let s = 0; s < starts; s++) {
+    const off = base + s * m;
+    for (let l = 0; l < length; l++) {
+      let i = s + l;
+      if (i >= n) i -= n;
+      const src = i * m;
+      for (let q = 0; q < m; q++) table[off + q] += rowProducts[src + q];
     }
   }
+}
+
+/** Sums of every ordered pair (s1, s2) of full blocks into table[(s1*starts + s2)*m ..]. */
+function addPairSums(table: Float64Array, starts: number, m: number, fullBase: number): void {
+  for (let s1 = 0; s1 < starts; s1++) {
+    for (let s2 = 0; s2 < starts; s2++) {
+      const off = (s1 * starts + s2) * m;
+      for (let q = 0; q < m; q++) table[off + q] = table[fullBase + s1 * m + q] + table[fullBase + s2 * m + q];
+    }
+  }
+}
+
+/** What the draws of `bootstrapOls` need: the summand table, the undoing of the scaling, and work buffers. */
+interface OlsDrawPlan {
+  readonly k: number;
+  /** Values per summand: k(k+1)/2 cross products then k products with y. */
+  readonly m: number;
+  readonly starts: number;
+  readonly fullBlocks: number;
+  readonly usePairs: boolean;
+  readonly fullBase: number;
+  readonly lastBase: number;
+  readonly table: Float64Array;
+  readonly scale: Float64Array;
+  readonly mean: Float64Array;
+  readonly constantColumn: number;
+  readonly constantValue: number;
+  readonly sampler: BlockStartSampler;
+  readonly blockStarts: Int32Array;
+  readonly offsets: Int32Array;
+  readonly sums: Float64Array;
+  readonly normal: Float64Array;
+  readonly rhs: Float64Array;
+}
+
+/**
+ * The hot loop of `bootstrapOls`: only the draws, with nothing to allocate, so that the engine
+ * compiles it quickly and once. Writes draw d's coefficients to out[d*k ..]; returns the number
+ * of failed (singular) draws.
+ */
+function runOlsDraws(plan: OlsDrawPlan, out: Float64Array, draws: number): number {
+  const { k, m, starts, fullBlocks, usePairs, fullBase, lastBase, table, scale, mean, constantColumn, constantValue } = plan;
+  const { sampler, blockStarts, offsets, sums, normal, rhs } = plan;
   let failed = 0;
   for (let d = 0; d < draws; d++) {
-    // Blocks in draw order: fullBlocks full blocks (in pairs when usePairs), then the last one
-    // (possibly shorter), which uses lastSums.
+    // The draw's summands in block order: full blocks (in pairs when usePairs), then the last
+    // (possibly shorter) block; added in that order.
     sampler.reset();
-    acc.fill(0);
+    sampler.fill(blockStarts, fullBlocks + 1);
+    let count = 0;
     let blk = 0;
-    if (usePairs) {
-      for (; blk + 1 < fullBlocks; blk += 2) {
-        const s1 = sampler.next();
-        const off = (s1 * starts + sampler.next()) * m;
-        for (let q = 0; q < m; q++) acc[q] += pairSums[off + q];
-      }
-    }
-    for (; blk < fullBlocks; blk++) {
-      const off = sampler.next() * m;
-      for (let q = 0; q < m; q++) acc[q] += fullSums[off + q];
-    }
-    {
-      const off = sampler.next() * m;
-      for (let q = 0; q < m; q++) acc[q] += lastSums[off + q];
+    if (usePairs) for (; blk + 1 < fullBlocks; blk += 2) offsets[count++] = (blockStarts[blk] * starts + blockStarts[blk + 1]) * m;
+    for (; blk < fullBlocks; blk++) offsets[count++] = fullBase + blockStarts[blk] * m;
+    offsets[count++] = lastBase + blockStarts[blk] * m;
+    for (let q = 0; q < m; q++) {
+      let sum = 0;
+      for (let c = 0; c < count; c++) sum += table[offsets[c] + q];
+      sums[q] = sum;
     }
     let p = 0;
-    for (let a = 0; a < k; a++) for (let c = 0; c <= a; c++) normal[a + c * k] = acc[p++];
-    for (let a = 0; a < k; a++) rhs[a] = acc[p++];
+    for (let a = 0; a < k; a++) for (let c = 0; c <= a; c++) normal[a + c * k] = sums[p++];
+    for (let a = 0; a < k; a++) rhs[a] = sums[p++];
     const base = d * k;
     if (!choleskyInPlace(normal, k, 1e-10)) {
       failed++;
