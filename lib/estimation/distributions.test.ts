@@ -69,6 +69,16 @@ describe(`distributions vs ${reference.rVersion} (relative 1e-12 unless stated)`
     });
     console.log(`studentTQuantile: worst relative error vs R qt over ${reference.qt.p.length} points: ${worst.toExponential(2)}`);
   });
+
+  it("studentTQuantile gives the same R qt values when asked again, also after its memory of 1024 quantiles is full", () => {
+    const check = () =>
+      reference.qt.p.forEach((p, i) => {
+        expect(relativeError(studentTQuantile(p, reference.qt.df[i]), reference.qt.value[i]), `R qt(${p}, ${reference.qt.df[i]})`).toBeLessThanOrEqual(1e-12);
+      });
+    check(); // remembered from the test above
+    for (let df = 1; df <= 1100; df++) studentTQuantile(0.95, df + 0.5); // more than the memory holds
+    check();
+  });
 });
 
 describe("distributions: closed forms and identities", () => {

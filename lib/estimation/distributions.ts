@@ -363,6 +363,27 @@ export function studentTTwoSidedPValue(t: number, df: number): number {
 export function studentTQuantile(p: number, df: number): number {
   checkDegreesOfFreedom(df);
   if (!(p >= 0 && p <= 1)) throw new RangeError(`probability must be in [0, 1], got ${p}`);
+  // A fit of many economies asks for the same few (p, df) again and again: remember them.
+  let byDf = quantileMemo.get(p);
+  const known = byDf?.get(df);
+  if (known !== undefined) return known;
+  const value = studentTQuantileUncached(p, df);
+  if (quantileMemoSize >= 1024) {
+    quantileMemo.clear();
+    quantileMemoSize = 0;
+    byDf = undefined;
+  }
+  if (byDf === undefined) quantileMemo.set(p, (byDf = new Map()));
+  byDf.set(df, value);
+  quantileMemoSize++;
+  return value;
+}
+
+/** Quantiles already computed, by p then df (at most 1024, then forgotten). */
+const quantileMemo = new Map<number, Map<number, number>>();
+let quantileMemoSize = 0;
+
+function studentTQuantileUncached(p: number, df: number): number {
   if (p === 0) return Number.NEGATIVE_INFINITY;
   if (p === 1) return Number.POSITIVE_INFINITY;
   if (p === 0.5) return 0;

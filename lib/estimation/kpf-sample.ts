@@ -73,16 +73,13 @@ export function validateKpfSeries(series: KpfEconomySeries): void {
   if (typeof code !== "string" || code.length === 0) throw new RangeError(`economy code must be a non-empty string, got ${JSON.stringify(code)}`);
   const years = series.years;
   if (!Array.isArray(years)) throw new RangeError(`${code}: years must be an array`);
-  const fields: [string, readonly (number | null)[] | undefined][] = [
-    ["researchers", series.researchers],
-    ["tfp", series.tfp],
-    ["population", series.population],
-    ["capital", series.capital],
-  ];
-  for (const [name, values] of fields) {
-    if (values === undefined && (name === "population" || name === "capital")) continue;
+  const names = ["researchers", "tfp", "population", "capital"] as const;
+  const fields = [series.researchers, series.tfp, series.population, series.capital];
+  for (let f = 0; f < fields.length; f++) {
+    const values = fields[f];
+    if (values === undefined && f >= 2) continue; // population and capital are optional
     if (values === undefined || values.length !== years.length) {
-      throw new RangeError(`${code}: ${name} has ${values?.length ?? 0} values but years has ${years.length}`);
+      throw new RangeError(`${code}: ${names[f]} has ${values?.length ?? 0} values but years has ${years.length}`);
     }
   }
   for (let i = 0; i < years.length; i++) {
@@ -90,12 +87,14 @@ export function validateKpfSeries(series: KpfEconomySeries): void {
     if (i > 0 && years[i] <= years[i - 1]) {
       throw new RangeError(`${code}: years must increase strictly, but ${years[i]} follows ${years[i - 1]}`);
     }
-    for (const [name, values] of fields) {
-      if (values === undefined) continue;
+  }
+  for (let f = 0; f < fields.length; f++) {
+    const values = fields[f];
+    if (values === undefined) continue;
+    for (let i = 0; i < years.length; i++) {
       const v = values[i];
-      if (v === null) continue;
-      if (typeof v !== "number" || !Number.isFinite(v) || !(v > 0)) {
-        throw new RangeError(`${code}: ${name} in ${years[i]} is ${String(v)}; levels must be positive (null for missing)`);
+      if (v !== null && !(typeof v === "number" && v > 0 && v < Infinity)) {
+        throw new RangeError(`${code}: ${names[f]} in ${years[i]} is ${String(v)}; levels must be positive (null for missing)`);
       }
     }
   }
