@@ -65,6 +65,14 @@ describe("readPanelCsv", () => {
     expect(problem(() => readPanelCsv(`${header},TFP\n`, "p.csv")).message).toBe('p.csv, row 1: column "TFP" appears twice in the header (columns 4 and 6).');
   });
 
+  it("reads spaces around cells and Windows line ends alike, whether or not some cell is quoted", () => {
+    const plain = `${header}\r\n XAA , 2000 ,10, 1 ,100\r\nXAA,2001,11,1.01,101\r\n`;
+    const quoted = `${header}\r\n"XAA" , 2000 ,10, 1 ,100\r\nXAA,2001,11,1.01,101\r\n`;
+    const expected = { economy: "XAA", years: [2000, 2001], researchers: [10, 11], tfp: [1, 1.01], population: [100, 101] };
+    expect(readPanelCsv(plain, "p.csv").panel).toEqual([expected]); // d3-dsv path (no quotes)
+    expect(readPanelCsv(quoted, "p.csv").panel).toEqual([expected]); // csv-parse path
+  });
+
   it("counts rows as a spreadsheet does across quoted line breaks", () => {
     const e = problem(() => readPanelCsv(`${header},note\nXAA,2000,10,1,100,"two\nlines"\nXAA,2001,-1,1,100,x\n`, "p.csv"));
     expect(e.row).toBe(4); // header row 1, a two-line record rows 2-3, the bad record starts on line 4

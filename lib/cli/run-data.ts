@@ -1,7 +1,7 @@
 /** Implementations of the data commands (loaded only when one runs). */
 import fs from "node:fs";
 import path from "node:path";
-import { stringify } from "csv-stringify/sync";
+import { csvFormat } from "d3-dsv";
 import { CONCEPTS, DEFAULT_UNITS, type Concept } from "../ingestion/types";
 import { parseSourceDefinition, type SourceDefinition, type SourceDefinitionInput } from "../ingestion/sources";
 import { CATALOG, findCatalogSource } from "../ingestion/catalog";
@@ -139,10 +139,10 @@ export async function runRevisions(o: { source: string; from: string; to: string
     if (o.csv) {
       fs.writeFileSync(
         o.csv,
-        stringify(
+        `${csvFormat(
           revs.map((r) => ({ economy: r.economy, concept: r.concept, unit: r.unit, period: r.period, kind: r.kind, old_value: r.oldValue, new_value: r.newValue, old_status: r.oldStatus, new_status: r.newStatus })),
-          { header: true, columns: ["economy", "concept", "unit", "period", "kind", "old_value", "new_value", "old_status", "new_status"] },
-        ),
+          ["economy", "concept", "unit", "period", "kind", "old_value", "new_value", "old_status", "new_status"],
+        )}\n`,
       );
       progress(`Wrote ${revs.length} rows to ${o.csv}`);
     }

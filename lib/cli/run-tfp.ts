@@ -3,7 +3,7 @@
  * Tornqvist growth accounting per economy (lib/estimation tornqvistTfpGrowth), write the CSV.
  */
 import { readFile, writeFile } from "node:fs/promises";
-import { stringify } from "csv-stringify/sync";
+import { csvFormatRows } from "d3-dsv";
 import { tornqvistTfpGrowth } from "../estimation/growth-accounting";
 import type { TfpCommandOptions } from "./commands/tfp";
 import { readAccountsCsv } from "./panel-csv";
@@ -27,7 +27,7 @@ export function tfpCsv(text: string, file: string): { csv: string; notes: string
     for (const w of result.warnings) notes.push(`${economy}: ${w}`);
     for (const y of result.years) rows.push([economy, String(y.year), csvNumber(y.tfpIndex), csvNumber(y.tfpGrowth)]);
   }
-  return { csv: stringify(rows, { eof: true }), notes, economies: economies.size };
+  return { csv: `${csvFormatRows(rows)}\n`, notes, economies: economies.size };
 }
 
 /**

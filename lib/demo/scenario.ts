@@ -8,7 +8,7 @@
  * researcher series broken by a change of survey method.
  */
 import { createHash } from "node:crypto";
-import { stringify } from "csv-stringify/sync";
+import { csvFormat } from "d3-dsv";
 import { createRng } from "../estimation/random";
 import params from "./parameters.json" with { type: "json" };
 
@@ -156,10 +156,10 @@ function round(x: number, digits: number): number {
 /** Demo vintage `index` as an SDMX-CSV 1.0 file (the format the demo statistics office serves). */
 export function demoReleaseSdmxCsv(index: number): string {
   const rows = demoReleaseRows(index);
-  return stringify(
+  return `${csvFormat(
     rows.map((r) => ({ DATAFLOW: "IDEAFRONT_DEMO:DF_KPF(1.0)", ...r })),
-    { header: true, columns: ["DATAFLOW", "REF_AREA", "MEASURE", "UNIT_MEASURE", "TIME_PERIOD", "OBS_VALUE", "OBS_STATUS"] },
-  );
+    ["DATAFLOW", "REF_AREA", "MEASURE", "UNIT_MEASURE", "TIME_PERIOD", "OBS_VALUE", "OBS_STATUS"],
+  )}\n`;
 }
 
 /** Number of demo vintages. */
