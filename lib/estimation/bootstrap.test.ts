@@ -136,6 +136,26 @@ describe("bootstrapOls (fast path)", () => {
     }
   });
 
+  it("the general loop (two and four columns, no constant) equals QR refits as the three-column path does", () => {
+    const { design, y } = smallProblem(5);
+    const cols = (j: number) => Array.from(design.data.subarray(j * 40, (j + 1) * 40));
+    const extra = cols(1).map((v, i) => v * v - 0.01 * i); // a fourth column, not collinear
+    const designs = [matrixFromColumns([cols(1), cols(2)]), matrixFromColumns([cols(0), cols(1), cols(2), extra])];
+    for (const X of designs) {
+      const k = X.cols;
+      const fast = bootstrapOls(X, y, { draws: 40, rng: createRng(17) });
+      const rng = createRng(17);
+      const idx = new Int32Array(40);
+      for (let d = 0; d < 40; d++) {
+        movingBlockIndices(40, rng, {}, idx);
+        const refit = ols(selectRows(X, idx), Float64Array.from(idx, (i) => y[i]));
+        for (let j = 0; j < k; j++) {
+          expect(Math.abs(fast.coefficients[d * k + j] - refit.coefficients[j]) / Math.abs(refit.coefficients[j]), `${k} columns, draw ${d}`).toBeLessThan(1e-8);
+        }
+      }
+    }
+  });
+
   it("is reproducible, reports its settings, and gives sensible percentile intervals", () => {
     const { design, y } = smallProblem(2);
     const a = bootstrapOls(design, y, { draws: 299, rng: createRng(7), names: ["lnB", "gamma", "thetaMinus1"] });
@@ -167,6 +187,23 @@ describe("bootstrapOls (fast path)", () => {
     expect(result.failedDraws).toBeGreaterThan(0);
     expect(result.warnings[0].code).toBe("failed-draws");
     expect(bootstrapPercentileIntervals(result)[1].validDraws).toBe(50 - result.failedDraws);
+    // The same with three columns (the written-out path): the NaN draws are exactly the singular ones.
+    const three = matrixFromColumns([
+      [1, 1, 1, 1, 1, 1, 1, 1],
+      [1, 2, 3, 4, 5, 6, 7, 8],
+      [5, 0, 0, 0, 0, 0, 0, 0],
+    ]);
+    const r3 = bootstrapOls(three, Float64Array.of(1, 2, 3, 4, 5, 6, 7, 8), { draws: 50, rng: createRng(4), blockLength: 2 });
+    const rng = createRng(4);
+    const idx = new Int32Array(8);
+    let singular = 0;
+    for (let d = 0; d < 50; d++) {
+      movingBlockIndices(8, rng, { blockLength: 2 }, idx);
+      const hasRow0 = idx.includes(0);
+      if (!hasRow0) singular++;
+      expect(Number.isNaN(r3.coefficients[d * 3]), `draw ${d}`).toBe(!hasRow0);
+    }
+    expect(r3.failedDraws).toBe(singular);
   });
 
   it("percentile intervals use R's type-7 quantiles", () => {

@@ -200,12 +200,12 @@ export interface OlsBootstrapResult {
  * and refits by OLS. Built for many small problems (k <= ~6 columns, T <= ~100 rows): nothing is
  * allocated per draw. Before the draws, the columns are centred on their full-sample means (when X
  * has a constant column: an exact reparametrisation, undone afterwards) and scaled to unit norm,
- * and the cross products x_i x_i' and x_i y_i are summed once per possible block (and, when that
- * table is small, per ordered pair of blocks); a draw then adds about ceil(T/b)/2 such sums and
- * solves the k x k normal equations by Cholesky. Centring and scaling keep
- * the normal equations well conditioned, so the result equals an OLS refit on the resampled rows
- * to about 1e-12 relative for such designs (checked in bootstrap.test.ts); for ill-conditioned
- * designs use `movingBlockIndices` and `ols` instead.
+ * and the cross products x_i x_i' and x_i y_i are summed once per possible block; a draw then adds
+ * ceil(T/b) such sums and solves the k x k normal equations by Cholesky (written out for k = 3, the
+ * log-linear forms). Centring and scaling keep the normal equations well conditioned, so the
+ * result equals an OLS refit on the resampled rows to about 1e-12 relative for such designs
+ * (checked in bootstrap.test.ts); for ill-conditioned designs use `movingBlockIndices` and `ols`
+ * instead.
  *
  * Throws RangeError for mismatched or non-finite inputs, bad draws or block length.
  * Example: `bootstrapOls(X, y, { draws: 999, rng: createRng(1) }).coefficients` holds 999 x k
@@ -269,30 +269,22 @@ export function bootstrapOls(design: Matrix, y: Float64Array, options: OlsBootst
     for (let a = 0; a < k; a++) rowProducts[p++] = xt[i + a * n] * y[i];
   }
 
-  // 3. The summands of a draw in one table: the sums over every possible full block, over every
-  //    possible last (possibly shorter) block, and, when the table stays small next to the work it
-  //    saves, over every ordered pair of full blocks (halving the additions per draw).
+  // 3. The summands of a draw in one table: the sums over every possible full block, then over
+  //    every possible last (possibly shorter) block.
   const starts = circular ? n : n - b + 1;
   const blocksPerDraw = Math.ceil(n / b);
   const fullBlocks = blocksPerDraw - 1;
-  const usePairs = fullBlocks >= 2 && starts * starts <= (draws * fullBlocks) / 2;
-  const pairCount = usePairs ? starts * starts : 0;
-  const fullBase = pairCount * m;
-  const lastBase = fullBase + starts * m;
-  const table = new Float64Array(lastBase + starts * m);
-  addBlockSums(rowProducts, n, m, starts, b, table, fullBase);
+  const lastBase = starts * m;
+  const table = new Float64Array(2 * starts * m);
+  addBlockSums(rowProducts, n, m, starts, b, table, 0);
   addBlockSums(rowProducts, n, m, starts, n - fullBlocks * b, table, lastBase);
-  if (usePairs) addPairSums(table, starts, m, fullBase);
 
   // 4. Draws: everything allocated here, nothing per draw.
   const out = new Float64Array(draws * k);
   const plan: OlsDrawPlan = {
     k,
     m,
-    starts,
     fullBlocks,
-    usePairs,
-    fullBase,
     lastBase,
     table,
     scale,
@@ -301,12 +293,11 @@ export function bootstrapOls(design: Matrix, y: Float64Array, options: OlsBootst
     constantValue: constantColumn >= 0 ? x[constantColumn * n] : 1,
     sampler: new BlockStartSampler(rng, starts),
     blockStarts: new Int32Array(blocksPerDraw),
-    offsets: new Int32Array(blocksPerDraw),
     sums: new Float64Array(m),
     normal: new Float64Array(k * k),
     rhs: new Float64Array(k),
   };
-  const failed = runOlsDraws(plan, out, draws);
+  const failed = k === 3 ? runOlsDrawsThreeColumns(plan, out, draws) : runOlsDraws(plan, out, draws);
   const warnings: EstimationWarning[] = [];
   if (failed > 0) {
     warnings.push({
@@ -342,25 +333,14 @@ function addBlockSums(rowProducts: Float64Array, n: number, m: number, starts: n
   }
 }
 
-/** Sums of every ordered pair (s1, s2) of full blocks into table[(s1*starts + s2)*m ..]. */
-function addPairSums(table: Float64Array, starts: number, m: number, fullBase: number): void {
-  for (let s1 = 0; s1 < starts; s1++) {
-    for (let s2 = 0; s2 < starts; s2++) {
-      const off = (s1 * starts + s2) * m;
-      for (let q = 0; q < m; q++) table[off + q] = table[fullBase + s1 * m + q] + table[fullBase + s2 * m + q];
-    }
-  }
-}
-
 /** What the draws of `bootstrapOls` need: the summand table, the undoing of the scaling, and work buffers. */
 interface OlsDrawPlan {
   readonly k: number;
-  /** Values per summand: k(k+1)/2 cross products then k products with y. */
+  /** Values per summand: k(k+1)/2 cross products (packed lower triangle, row by row) then k products with y. */
   readonly m: number;
-  readonly starts: number;
+  /** Full blocks per draw; one last (possibly shorter) block follows. */
   readonly fullBlocks: number;
-  readonly usePairs: boolean;
-  readonly fullBase: number;
+  /** Where the last-block sums start in `table` (the full-block sums start at 0). */
   readonly lastBase: number;
   readonly table: Float64Array;
   readonly scale: Float64Array;
@@ -369,35 +349,27 @@ interface OlsDrawPlan {
   readonly constantValue: number;
   readonly sampler: BlockStartSampler;
   readonly blockStarts: Int32Array;
-  readonly offsets: Int32Array;
   readonly sums: Float64Array;
   readonly normal: Float64Array;
   readonly rhs: Float64Array;
 }
 
 /**
- * The hot loop of `bootstrapOls`: only the draws, with nothing to allocate, so that the engine
- * compiles it quickly and once. Writes draw d's coefficients to out[d*k ..]; returns the number
- * of failed (singular) draws.
+ * The hot loop of `bootstrapOls` for any number of columns: only the draws, with nothing to
+ * allocate, so that the engine compiles it quickly and once. Writes draw d's coefficients to
+ * out[d*k ..]; returns the number of failed (singular) draws.
  */
 function runOlsDraws(plan: OlsDrawPlan, out: Float64Array, draws: number): number {
-  const { k, m, starts, fullBlocks, usePairs, fullBase, lastBase, table, scale, mean, constantColumn, constantValue } = plan;
-  const { sampler, blockStarts, offsets, sums, normal, rhs } = plan;
+  const { k, m, fullBlocks, lastBase, table, scale, mean, constantColumn, constantValue, sampler, blockStarts, sums, normal, rhs } = plan;
   let failed = 0;
   for (let d = 0; d < draws; d++) {
-    // The draw's summands in block order: full blocks (in pairs when usePairs), then the last
-    // (possibly shorter) block; added in that order.
+    // The draw's summands in block order (full blocks, then the last block), added in that order.
     sampler.reset();
     sampler.fill(blockStarts, fullBlocks + 1);
-    let count = 0;
-    let blk = 0;
-    if (usePairs) for (; blk + 1 < fullBlocks; blk += 2) offsets[count++] = (blockStarts[blk] * starts + blockStarts[blk + 1]) * m;
-    for (; blk < fullBlocks; blk++) offsets[count++] = fullBase + blockStarts[blk] * m;
-    offsets[count++] = lastBase + blockStarts[blk] * m;
     for (let q = 0; q < m; q++) {
       let sum = 0;
-      for (let c = 0; c < count; c++) sum += table[offsets[c] + q];
-      sums[q] = sum;
+      for (let c = 0; c < fullBlocks; c++) sum += table[blockStarts[c] * m + q];
+      sums[q] = sum + table[lastBase + blockStarts[fullBlocks] * m + q];
     }
     let p = 0;
     for (let a = 0; a < k; a++) for (let c = 0; c <= a; c++) normal[a + c * k] = sums[p++];
@@ -417,6 +389,109 @@ function runOlsDraws(plan: OlsDrawPlan, out: Float64Array, draws: number): numbe
       if (j !== constantColumn) interceptShift += mean[j] * coefficient;
     }
     if (constantColumn >= 0) out[base + constantColumn] -= interceptShift / constantValue;
+  }
+  return failed;
+}
+
+/**
+ * `runOlsDraws` written out for three columns (the log-linear forms: constant, ln R, ln A), the
+ * case of nearly every fit: the same additions in the same order and the same Cholesky
+ * factorisation and solves (choleskyInPlace with tolerance 1e-10, choleskySolveInPlace) in scalar
+ * variables, so the results equal the general loop's bit for bit (bootstrap.test.ts checks this)
+ * at about half the cost in a fresh process.
+ */
+function runOlsDrawsThreeColumns(plan: OlsDrawPlan, out: Float64Array, draws: number): number {
+  const { fullBlocks, lastBase, table, scale, mean, constantColumn, constantValue, sampler, blockStarts } = plan;
+  const scale0 = scale[0];
+  const scale1 = scale[1];
+  const scale2 = scale[2];
+  // The intercept shift leaves out the constant column's own term (its mean is 0).
+  const mean0 = mean[0];
+  const mean1 = mean[1];
+  const mean2 = mean[2];
+  let failed = 0;
+  for (let d = 0; d < draws; d++) {
+    sampler.reset();
+    sampler.fill(blockStarts, fullBlocks + 1);
+    // Packed lower triangle (0,0) (1,0) (1,1) (2,0) (2,1) (2,2), then X'y.
+    let s00 = 0;
+    let s10 = 0;
+    let s11 = 0;
+    let s20 = 0;
+    let s21 = 0;
+    let s22 = 0;
+    let r0 = 0;
+    let r1 = 0;
+    let r2 = 0;
+    for (let c = 0; c < fullBlocks; c++) {
+      const o = blockStarts[c] * 9;
+      s00 += table[o];
+      s10 += table[o + 1];
+      s11 += table[o + 2];
+      s20 += table[o + 3];
+      s21 += table[o + 4];
+      s22 += table[o + 5];
+      r0 += table[o + 6];
+      r1 += table[o + 7];
+      r2 += table[o + 8];
+    }
+    const o = lastBase + blockStarts[fullBlocks] * 9;
+    s00 += table[o];
+    s10 += table[o + 1];
+    s11 += table[o + 2];
+    s20 += table[o + 3];
+    s21 += table[o + 4];
+    s22 += table[o + 5];
+    r0 += table[o + 6];
+    r1 += table[o + 7];
+    r2 += table[o + 8];
+    const base = d * 3;
+    // Cholesky L L' of the normal matrix, with choleskyInPlace's test on each pivot.
+    const d0 = s00;
+    if (!(d0 > 1e-10 * s00) || !(d0 > 0)) {
+      failed++;
+      out[base] = out[base + 1] = out[base + 2] = Number.NaN;
+      continue;
+    }
+    const l00 = Math.sqrt(d0);
+    const l10 = s10 / l00;
+    const l20 = s20 / l00;
+    const d1 = s11 - l10 * l10;
+    if (!(d1 > 1e-10 * s11) || !(d1 > 0)) {
+      failed++;
+      out[base] = out[base + 1] = out[base + 2] = Number.NaN;
+      continue;
+    }
+    const l11 = Math.sqrt(d1);
+    const l21 = (s21 - l20 * l10) / l11;
+    const d2 = s22 - l20 * l20 - l21 * l21;
+    if (!(d2 > 1e-10 * s22) || !(d2 > 0)) {
+      failed++;
+      out[base] = out[base + 1] = out[base + 2] = Number.NaN;
+      continue;
+    }
+    const l22 = Math.sqrt(d2);
+    // Forward (L z = r) and back (L' x = z) substitution.
+    const z0 = r0 / l00;
+    const z1 = (r1 - l10 * z0) / l11;
+    const z2 = (r2 - l20 * z0 - l21 * z1) / l22;
+    const x2 = z2 / l22;
+    const x1 = (z1 - l21 * x2) / l11;
+    const x0 = (z0 - l10 * x1 - l20 * x2) / l00;
+    // Undo the scaling and the centring.
+    const c0 = x0 / scale0;
+    const c1 = x1 / scale1;
+    const c2 = x2 / scale2;
+    out[base] = c0;
+    out[base + 1] = c1;
+    out[base + 2] = c2;
+    if (constantColumn >= 0) {
+      let interceptShift = 0;
+      if (constantColumn !== 0) interceptShift += mean0 * c0;
+      if (constantColumn !== 1) interceptShift += mean1 * c1;
+      if (constantColumn !== 2) interceptShift += mean2 * c2;
+      out[base + constantColumn] -= interceptShift / constantValue;
+    }
   }
   return failed;
 }
