@@ -105,10 +105,13 @@ describe("bootstrap", () => {
       thetas.push(t);
       gstars.push(t >= 1 ? Infinity : boot.structural[4 * d + 3] * n);
     }
-    expect(e.gStarBootstrap!.lower).toBe(type7(gstars, 0.05)); // R quantile(type = 7), exact
-    expect(e.gStarBootstrap!.upper).toBe(type7(gstars, 0.95));
-    expect(e.regimeParameterInterval.lower).toBe(type7(thetas, 0.05));
-    expect(e.regimeParameterInterval.upper).toBe(type7(thetas, 0.95));
+    // 90% interval: probabilities (1 -/+ 0.9)/2 as computed in floating point (0.04999999999999999
+    // and 0.95), as R's boot.ci forms them (from memory); exact equality needs the same doubles.
+    const [pLo, pHi] = [(1 - 0.9) / 2, (1 + 0.9) / 2];
+    expect(e.gStarBootstrap!.lower).toBe(type7(gstars, pLo)); // R quantile(type = 7), exact
+    expect(e.gStarBootstrap!.upper).toBe(type7(gstars, pHi));
+    expect(e.regimeParameterInterval.lower).toBe(type7(thetas, pLo));
+    expect(e.regimeParameterInterval.upper).toBe(type7(thetas, pHi));
     expect(e.pThetaGe1).toBe(thetas.filter((t) => t >= 1).length / boot.draws);
     expect(e.gStarInterval).toBe(e.gStarBootstrap);
     expect(e.bootstrapDraws.valid).toBe(499);

@@ -231,12 +231,14 @@ function quantileInPlace(values: Float64Array, count: number, probability: numbe
 }
 
 /**
- * Equal-tailed percentile interval [q(alpha), q(1 - alpha)] (type 7) of values[0..count), alpha <
- * 0.5; the upper selection searches only from the lower quantile's order statistic on.
+ * Equal-tailed percentile interval at `level`: the type-7 quantiles at (1 - level)/2 and
+ * (1 + level)/2 of values[0..count) (the probabilities as R's boot.ci forms them, from memory);
+ * the upper selection searches only from the lower quantile's order statistic on.
  */
-function percentileInterval(values: Float64Array, count: number, alpha: number): IntervalEstimate {
-  const lower = quantileInPlace(values, count, alpha);
-  const upper = quantileInPlace(values, count, 1 - alpha, Math.floor((count - 1) * alpha));
+function percentileInterval(values: Float64Array, count: number, level: number): IntervalEstimate {
+  const lowerProbability = (1 - level) / 2;
+  const lower = quantileInPlace(values, count, lowerProbability);
+  const upper = quantileInPlace(values, count, (1 + level) / 2, Math.floor((count - 1) * lowerProbability));
   return { lower, upper, method: "bootstrap-percentile" };
 }
 
@@ -420,7 +422,6 @@ export function impliedGrowth(fit: KpfFit, cov: KpfCovariance, options: ImpliedG
   const zNormal = normalQuantile((1 + level) / 2);
   const df = cov.degreesOfFreedom;
   const tQuantile = df > 0 ? studentTQuantile((1 + level) / 2, df) : Number.NaN;
-  const alpha = (1 - level) / 2;
 
   // Bootstrap draws of the regime parameter, gamma, kappa (shared by every economy of the fit).
   const draws = bootstrap?.draws ?? 0;
@@ -437,7 +438,7 @@ export function impliedGrowth(fit: KpfFit, cov: KpfCovariance, options: ImpliedG
     : !identified
       ? { lower: Number.NaN, upper: Number.NaN, method: "none" }
       : validTheta > 0
-        ? percentileInterval(thetaDraws, validTheta, alpha)
+        ? percentileInterval(thetaDraws, validTheta, level)
         : { lower: regimeParameter - tQuantile * seTheta, upper: regimeParameter + tQuantile * seTheta, method: "t" };
   const gammaInterval: IntervalEstimate =
     spec.restrictions.gamma !== null
@@ -445,7 +446,7 @@ export function impliedGrowth(fit: KpfFit, cov: KpfCovariance, options: ImpliedG
       : !identified
         ? { lower: Number.NaN, upper: Number.NaN, method: "none" }
         : validGamma > 0
-          ? percentileInterval(gammaDraws, validGamma, alpha)
+          ? percentileInterval(gammaDraws, validGamma, level)
           : { lower: gamma - tQuantile * seGamma, upper: gamma + tQuantile * seGamma, method: "t" };
   const pThetaGe1 = !identified ? null : fixedTheta ? (regimeParameter >= 1 ? 1 : 0) : validTheta > 0 ? thetaGe1 / validTheta : null;
 
@@ -500,7 +501,7 @@ export function impliedGrowth(fit: KpfFit, cov: KpfCovariance, options: ImpliedG
       valid = counts.valid;
       infinite = counts.infinite;
       if (valid > 0) {
-        gStarBootstrap = percentileInterval(gDraws, valid, alpha);
+        gStarBootstrap = percentileInterval(gDraws, valid, level);
       }
     }
     const gStarInterval = gStarBootstrap ?? gStarDelta;
