@@ -389,6 +389,8 @@ export function neweyWestCovariance(fit: LeastSquaresFit, options: NeweyWestOpti
   let meat: Float64Array = new Float64Array(r * r);
   for (const rows of groups) {
     const m = rows.length;
+    // The group's scores with its rows in order, column-major m x r (without groups: u itself).
+    const g = options.groups === undefined ? u : gatherRows(u, rowsInScores, r, rows);
     for (let j = 0; j <= Math.min(lags, m - 1); j++) {
       const w = weights[j];
       if (w === 0) continue;
@@ -396,7 +398,9 @@ export function neweyWestCovariance(fit: LeastSquaresFit, options: NeweyWestOpti
         for (let c = 0; c < r; c++) {
           // sum_t u_t[a] u_{t-j}[c]
           let s = 0;
-          for (let t = j; t < m; t++) s += u[rows[t] + a * rowsInScores] * u[rows[t - j] + c * rowsInScores];
+          const ua = a * m;
+          const uc = c * m - j;
+          for (let t = j; t < m; t++) s += g[ua + t] * g[uc + t];
           if (j === 0) {
             meat[a + c * r] += s;
           } else {
@@ -419,6 +423,14 @@ export function neweyWestCovariance(fit: LeastSquaresFit, options: NeweyWestOpti
     warnings,
     { lags },
   );
+}
+
+/** Rows `rows` of the column-major n x r matrix u, in that order, as a column-major rows.length x r matrix. */
+function gatherRows(u: Float64Array, n: number, r: number, rows: readonly number[]): Float64Array {
+  const m = rows.length;
+  const g = new Float64Array(m * r);
+  for (let a = 0; a < r; a++) for (let t = 0; t < m; t++) g[t + a * m] = u[rows[t] + a * n];
+  return g;
 }
 
 /** D M D' for r x r column-major matrices. */
