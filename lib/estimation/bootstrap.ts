@@ -423,8 +423,8 @@ function runOlsDrawsThreeColumns(plan: OlsDrawPlan, out: Float64Array, draws: nu
     let r0 = 0;
     let r1 = 0;
     let r2 = 0;
-    for (let c = 0; c < fullBlocks; c++) {
-      const o = blockStarts[c] * 9;
+    for (let c = 0; c <= fullBlocks; c++) {
+      const o = (c < fullBlocks ? 0 : lastBase) + blockStarts[c] * 9;
       s00 += table[o];
       s10 += table[o + 1];
       s11 += table[o + 2];
@@ -435,37 +435,18 @@ function runOlsDrawsThreeColumns(plan: OlsDrawPlan, out: Float64Array, draws: nu
       r1 += table[o + 7];
       r2 += table[o + 8];
     }
-    const o = lastBase + blockStarts[fullBlocks] * 9;
-    s00 += table[o];
-    s10 += table[o + 1];
-    s11 += table[o + 2];
-    s20 += table[o + 3];
-    s21 += table[o + 4];
-    s22 += table[o + 5];
-    r0 += table[o + 6];
-    r1 += table[o + 7];
-    r2 += table[o + 8];
     const base = d * 3;
-    // Cholesky L L' of the normal matrix, with choleskyInPlace's test on each pivot.
+    // Cholesky L L' of the normal matrix. choleskyInPlace stops at the first pivot that fails its
+    // test; here a failed pivot turns what follows into NaN or garbage, and the draw fails all the same.
     const d0 = s00;
-    if (!(d0 > 1e-10 * s00) || !(d0 > 0)) {
-      failed++;
-      out[base] = out[base + 1] = out[base + 2] = Number.NaN;
-      continue;
-    }
     const l00 = Math.sqrt(d0);
     const l10 = s10 / l00;
     const l20 = s20 / l00;
     const d1 = s11 - l10 * l10;
-    if (!(d1 > 1e-10 * s11) || !(d1 > 0)) {
-      failed++;
-      out[base] = out[base + 1] = out[base + 2] = Number.NaN;
-      continue;
-    }
     const l11 = Math.sqrt(d1);
     const l21 = (s21 - l20 * l10) / l11;
     const d2 = s22 - l20 * l20 - l21 * l21;
-    if (!(d2 > 1e-10 * s22) || !(d2 > 0)) {
+    if (!(d0 > 1e-10 * s00 && d0 > 0 && d1 > 1e-10 * s11 && d1 > 0 && d2 > 1e-10 * s22 && d2 > 0)) {
       failed++;
       out[base] = out[base + 1] = out[base + 2] = Number.NaN;
       continue;
