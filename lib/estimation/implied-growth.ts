@@ -314,7 +314,8 @@ function studentTDraw(rng: Rng, nu: number): number {
     const u = 2 * rng.nextFloat64() - 1;
     const v = 2 * rng.nextFloat64() - 1;
     const w = u * u + v * v;
-    // w^(-2/nu) as exp(-2 ln(w)/nu): within a few units in the last place of Math.pow, at a third of its cost.
+    // w^(-2/nu) as exp(-2 ln(w)/nu): equal to Math.pow's within about 1 + |2 ln(w)/nu| units in the
+    // last place (a few, but for vanishing w), at a third of its cost.
     if (w > 0 && w < 1) return nu === Infinity ? u * Math.sqrt((-2 * Math.log(w)) / w) : u * Math.sqrt((nu * (Math.exp((-2 / nu) * Math.log(w)) - 1)) / w);
   }
 }
