@@ -70,7 +70,7 @@ export function kpfCovariance(fit: KpfFit, choice: KpfCovarianceChoice = fit.spe
     throw new RangeError(`kpfCovariance: the fit has no estimate (${fit.warnings[fit.warnings.length - 1] ?? "no observations"})`);
   }
   const regression = fit.regression;
-  const economyLabels = Array.from(fit.rowEconomy, (e) => fit.economies[e]);
+  const economyLabels = (): string[] => Array.from(fit.rowEconomy, (e) => fit.economies[e]);
   let coefficients: CovarianceEstimate;
   switch (choice.kind) {
     case "classical":
@@ -81,14 +81,14 @@ export function kpfCovariance(fit: KpfFit, choice: KpfCovarianceChoice = fit.spe
       break;
     case "cluster":
       if (fit.economies.length < 2) throw new RangeError(`kpfCovariance: clustering by economy needs at least 2 economies, the fit has ${fit.economies.length}`);
-      coefficients = clusterCovariance(regression, economyLabels, { type: "HC1", clusterAdjust: true });
+      coefficients = clusterCovariance(regression, economyLabels(), { type: "HC1", clusterAdjust: true });
       break;
     case "HAC": {
       const lags = choice.lags === "auto" ? kpfAutoHacLags(fit) : choice.lags;
       coefficients = neweyWestCovariance(regression, {
         lags,
         adjust: choice.adjust,
-        groups: fit.economies.length > 1 ? economyLabels : undefined,
+        groups: fit.economies.length > 1 ? economyLabels() : undefined,
       });
       break;
     }

@@ -59,6 +59,11 @@ export function researchGrowth(
   if (method !== "endpoints" && method !== "log-trend") throw new RangeError(`${where}: unknown method "${String(method)}" (use "endpoints" or "log-trend")`);
   checkYears(where, years, researchers.length, "researchers");
   const warnings: string[] = [];
+  // The latest year with a positive figure ends the window: only years from t1 - window on are
+  // kept (every value is still checked, and every zero reported).
+  let latest = -1;
+  for (let i = years.length - 1; i >= 0 && latest < 0; i--) if (researchers[i] !== null && (researchers[i] as number) > 0) latest = i;
+  const from = latest >= 0 ? years[latest] - window : Infinity;
   const points: { year: number; log: number }[] = [];
   for (let i = 0; i < years.length; i++) {
     const value = researchers[i];
@@ -68,7 +73,7 @@ export function researchGrowth(
       warnings.push(`researchers in ${years[i]} is 0: left out (its log is undefined)`);
       continue;
     }
-    points.push({ year: years[i], log: Math.log(value) });
+    if (years[i] >= from) points.push({ year: years[i], log: Math.log(value) });
   }
   const none = { n: null, t0: null, method, window };
   if (points.length === 0) {
