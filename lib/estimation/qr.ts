@@ -311,19 +311,18 @@ export function leastSquaresSolve(
       const dz = new Float64Array(n);
       for (let j = 0; j < r; j++) dz[j] = d[j] - g[j];
       solveR(qr, dz);
-      let changeNorm = 0;
-      let sizeNorm = 0;
+      // Converged when no coefficient moves by more than half a unit in its last place.
+      let moved = false;
       for (let j = 0; j < r; j++) {
         const c = kept[j];
         const delta = dz[j] / qr.scale[c];
+        if (Math.abs(delta) > 2 ** -53 * Math.abs(coefficients[c])) moved = true;
         coefficients[c] += delta;
-        changeNorm = Math.max(changeNorm, Math.abs(delta));
-        sizeNorm = Math.max(sizeNorm, Math.abs(coefficients[c]));
       }
       for (let j = 0; j < r; j++) d[j] = g[j];
       applyQ(qr, d, d);
       for (let i = 0; i < n; i++) residual[i] += d[i];
-      if (changeNorm <= 1e-17 * sizeNorm) {
+      if (!moved) {
         steps++;
         break;
       }
