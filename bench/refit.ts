@@ -68,21 +68,22 @@ console.log(`SIMULATED panel: 200 fictional economies x 45 years -> ${path.relat
 const build = spawnSync(process.execPath, [path.join(root, "scripts/build-cli.mjs")], { encoding: "utf8" });
 if (build.status !== 0) throw new Error(`node scripts/build-cli.mjs failed: ${build.stderr}`);
 
+const { NODE_EXTRA_CA_CERTS: extraCerts, ...withoutCerts } = process.env;
 const bare = timeProcess(["-e", "0"]);
 console.log(`node -e 0 (bare start-up):                      ${seconds(median(bare.wall))} s`);
-if (process.env.NODE_EXTRA_CA_CERTS) {
-  const { NODE_EXTRA_CA_CERTS: _, ...withoutCerts } = process.env;
+if (extraCerts) {
   const bareNoCerts = timeProcess(["-e", "0"], withoutCerts);
   console.log(
     `  the same without NODE_EXTRA_CA_CERTS:         ${seconds(median(bareNoCerts.wall))} s ` +
-      `(this environment sets it to ${process.env.NODE_EXTRA_CA_CERTS}; Node 20 reads the bundle at every start)`,
+      `(this environment sets it to ${extraCerts}; Node 20 reads the bundle at every start)`,
   );
 }
 const help = timeProcess([path.join(root, "bin/ideafront.mjs"), "--help"]);
 console.log(`node bin/ideafront.mjs --help (start-up):       ${seconds(median(help.wall))} s`);
 
 const outFile = path.join(outDir, "refit-reference.csv");
-const fit = timeProcess([path.join(root, "bin/ideafront.mjs"), "fit", "--panel", panelFile, "--spec", "reference", "--out", outFile]);
+const fitArgs = [path.join(root, "bin/ideafront.mjs"), "fit", "--panel", panelFile, "--spec", "reference", "--out", outFile];
+const fit = timeProcess(fitArgs);
 const parts = fit.stderr.map(reportedParts);
 const fitWall = median(fit.wall);
 console.log(
@@ -91,8 +92,12 @@ console.log(
 );
 console.log(
   `  reported by the command: reading ${seconds(median(parts.map((p) => p.reading)))} s, fitting ${seconds(median(parts.map((p) => p.fitting)))} s, ` +
-    `writing ${seconds(median(parts.map((p) => p.writing)))} s; before the command starts ${seconds(fitWall - median(parts.map((p) => p.command)))} s`,
+    `writing ${seconds(median(parts.map((p) => p.writing)))} s; outside the command (start-up and exit) ${seconds(fitWall - median(parts.map((p) => p.command)))} s`,
 );
+if (extraCerts) {
+  const fitNoCerts = timeProcess(fitArgs, withoutCerts);
+  console.log(`  the same without NODE_EXTRA_CA_CERTS: ${seconds(median(fitNoCerts.wall))} s wall (runs ${fitNoCerts.wall.map(seconds).join(", ")})`);
+}
 
 // 3. In process, warm JIT.
 const { panel } = readPanelCsv(csv, panelFile);
